@@ -1,0 +1,155 @@
+import {
+	char,
+	date,
+	datetime,
+	double,
+	index,
+	int,
+	mysqlEnum,
+	mysqlTable,
+	text,
+	varchar
+} from 'drizzle-orm/mysql-core';
+import { json } from './json';
+import { FLAG_KINDS, WORK_ORDER_ACTIONS, WORK_ORDER_STATUSES } from '../../../schemas/fixture';
+import { users } from './auth';
+import { fixtures } from './register';
+
+/**
+ * The append-only log. The primary key is the UUID the device made, so a batch sent twice
+ * stores each event once. Rows are never updated or deleted; corrections are new events.
+ */
+export const events = mysqlTable(
+	'events',
+	{
+		id: char('id', { length: 36 }).primaryKey(),
+		fixtureId: int('fixture_id')
+			.notNull()
+			.references(() => fixtures.id),
+		kind: varchar('kind', { length: 20 }).notNull(),
+		occurredAt: datetime('occurred_at', { mode: 'date', fsp: 3 }).notNull(),
+		receivedAt: datetime('received_at', { mode: 'date', fsp: 3 }).notNull(),
+		userId: varchar('user_id', { length: 255 })
+			.notNull()
+			.references(() => users.id),
+		deviceId: varchar('device_id', { length: 100 }).notNull(),
+		payload: json<Record<string, unknown>>('payload').notNull(),
+		/** SHA-256 of the canonical content, to tell a true duplicate from a clashing id. */
+		contentHash: char('content_hash', { length: 64 }).notNull()
+	},
+	(t) => [
+		index('events_fixture_occurred_idx').on(t.fixtureId, t.occurredAt),
+		index('events_fixture_received_idx').on(t.fixtureId, t.receivedAt),
+		index('events_user_idx').on(t.userId, t.receivedAt)
+	]
+);
+
+/**
+ * Derived health of one fixture, folded from its events on every ingest. Never the source of
+ * truth: `data` holds the domain's full state; the columns beside it are copies for filtering.
+ */
+export const fixtureState = mysqlTable(
+	'fixture_state',
+	{
+		fixtureId: int('fixture_id')
+			.primaryKey()
+			.references(() => fixtures.id),
+		data: json<Record<string, unknown>>('data').notNull(),
+		eventCount: int('event_count').notNull().default(0),
+		totalCycles: int('total_cycles').notNull().default(0),
+		cyclesSinceCleaning: int('cycles_since_cleaning').notNull().default(0),
+		cyclesSinceInspection: int('cycles_since_inspection').notNull().default(0),
+		cyclesSincePartSwap: int('cycles_since_part_swap').notNull().default(0),
+		repeatability_um: double('repeatability_um'),
+		wearGrade: int('wear_grade'),
+		lastEventAt: datetime('last_event_at', { mode: 'date', fsp: 3 }),
+		lastCleaningAt: datetime('last_cleaning_at', { mode: 'date', fsp: 3 }),
+		lastInspectionAt: datetime('last_inspection_at', { mode: 'date', fsp: 3 }),
+		updatedAt: datetime('updated_at', { mode: 'date', fsp: 3 })
+			.notNull()
+			.$defaultFn(() => new Date())
+	},
+	(t) => [index('fixture_state_cycles_idx').on(t.totalCycles)]
+);
+
+/** Raised and cleared health flags, with their history; open while `clearedAt` is null. */
+export const flags = mysqlTable(
+	'flags',
+	{
+		id: int('id').autoincrement().primaryKey(),
+		fixtureId: int('fixture_id')
+			.notNull()
+			.references(() => fixtures.id),
+		kind: mysqlEnum('kind', FLAG_KINDS).notNull(),
+		reason: text('reason').notNull(),
+		figures: json<Record<string, number | string | null>>('figures'),
+		raisedAt: datetime('raised_at', { mode: 'date', fsp: 3 }).notNull(),
+		raisedByEventId: char('raised_by_event_id', { length: 36 }),
+		clearedAt: datetime('cleared_at', { mode: 'date', fsp: 3 }),
+		clearedByEventId: char('cleared_by_event_id', { length: 36 })
+	},
+	(t) => [
+		index('flags_fixture_open_idx').on(t.fixtureId, t.clearedAt),
+		index('flags_kind_open_idx').on(t.kind, t.clearedAt)
+	]
+);
+
+/** Planned work on a fixture, usually from a flag. */
+export const workOrders = mysqlTable(
+	'work_orders',
+	{
+		id: int('id').autoincrement().primaryKey(),
+		fixtureId: int('fixture_id')
+			.notNull()
+			.references(() => fixtures.id),
+		action: mysqlEnum('action', WORK_ORDER_ACTIONS).notNull(),
+		status: mysqlEnum('status', WORK_ORDER_STATUSES).notNull().default('planned'),
+		dueOn: date('due_on', { mode: 'string' }).notNull(),
+		assigneeId: varchar('assignee_id', { length: 255 }).references(() => users.id),
+		parts: json<{ partNo?: string; description: string; quantity: number }[]>('parts'),
+		notes: text('notes'),
+		flagId: int('flag_id').references(() => flags.id),
+		createdAt: datetime('created_at', { mode: 'date', fsp: 3 })
+			.notNull()
+			.$defaultFn(() => new Date()),
+		createdBy: varchar('created_by', { length: 255 }).references(() => users.id),
+		updatedAt: datetime('updated_at', { mode: 'date', fsp: 3 })
+			.notNull()
+			.$defaultFn(() => new Date()),
+		completedAt: datetime('completed_at', { mode: 'date', fsp: 3 })
+	},
+	(t) => [
+		index('work_orders_fixture_idx').on(t.fixtureId),
+		index('work_orders_due_idx').on(t.status, t.dueOn),
+		index('work_orders_assignee_idx').on(t.assigneeId)
+	]
+);
+
+/** Photos and files kept in object storage (S3 API); the row says where and what. */
+export const attachments = mysqlTable(
+	'attachments',
+	{
+		id: char('id', { length: 36 }).primaryKey(),
+		fixtureId: int('fixture_id')
+			.notNull()
+			.references(() => fixtures.id),
+		/** The event the photo belongs to; it may arrive before its event has synced. */
+		eventId: char('event_id', { length: 36 }),
+		objectKey: varchar('object_key', { length: 255 }).notNull(),
+		contentType: varchar('content_type', { length: 64 }).notNull(),
+		sizeBytes: int('size_bytes').notNull(),
+		sha256: char('sha256', { length: 64 }).notNull(),
+		width: int('width'),
+		height: int('height'),
+		uploadedBy: varchar('uploaded_by', { length: 255 })
+			.notNull()
+			.references(() => users.id),
+		createdAt: datetime('created_at', { mode: 'date', fsp: 3 })
+			.notNull()
+			.$defaultFn(() => new Date())
+	},
+	(t) => [
+		index('attachments_event_idx').on(t.eventId),
+		index('attachments_fixture_idx').on(t.fixtureId)
+	]
+);

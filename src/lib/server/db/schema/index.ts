@@ -1,0 +1,3 @@
+export * from './auth';
+export * from './register';
+export * from './activity';
