@@ -1,0 +1,106 @@
+/**
+ * The device's one IndexedDB database, `nestmark`: a copy of the register (snapshot), the outbox
+ * of events not yet accepted by the server, photo blobs waiting to upload, and small settings.
+ * Browser only; every caller runs after mount or inside a browser-side load.
+ */
+import { openDB, type DBSchema, type IDBPDatabase } from 'idb';
+import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
+
+/** Where an outbox entry stands: not sent yet, in flight, or refused by the server. */
+export type OutboxState = 'waiting' | 'sending' | 'rejected';
+
+/** One event the device logged, exactly as it will be sent, plus its place in the queue. */
+export interface OutboxEntry {
+	/** The event id (a UUID made here); the server keys on it, so resending is harmless. */
+	id: string;
+	fixtureCode: string;
+	kind: string;
+	/** Device clock, ISO 8601. */
+	occurredAt: string;
+	payload: Record<string, unknown>;
+	state: OutboxState;
+	/** The server's reason, when rejected. */
+	error?: string;
+	/** When it was written here (ISO 8601); the queue is sent oldest first. */
+	createdAt: string;
+	/** Who was signed in when it was logged, for the outbox page. */
+	loggedBy?: string;
+	/** How many times it was sent without an answer for it. */
+	attempts: number;
+}
+
+/** A photo kept until its event's upload succeeds. */
+export interface PhotoBlob {
+	id: string;
+	eventId: string;
+	fixtureCode: string;
+	blob: Blob;
+	contentType: string;
+	createdAt: string;
+}
+
+/** Keys of the `meta` store. */
+export interface MetaValues {
+	deviceId: string;
+	/** Last time the server answered a sync (ISO 8601). */
+	lastSyncAt: string;
+	/** ETag of the stored register snapshot. */
+	snapshotEtag: string;
+	/** When the stored snapshot was last confirmed current (ISO 8601). */
+	snapshotCheckedAt: string;
+}
+
+interface NestmarkDB extends DBSchema {
+	snapshot: { key: string; value: SnapshotFixture };
+	outbox: {
+		key: string;
+		value: OutboxEntry;
+		indexes: { 'by-fixture': string; 'by-created': string; 'by-state': OutboxState };
+	};
+	photos: { key: string; value: PhotoBlob; indexes: { 'by-event': string } };
+	meta: { key: keyof MetaValues; value: string };
+}
+
+export type ClientDb = IDBPDatabase<NestmarkDB>;
+
+const DB_NAME = 'nestmark';
+const DB_VERSION = 1;
+
+let opening: Promise<ClientDb> | undefined;
+
+/** Opens (once per page) the device database, creating its stores on first use. */
+export function clientDb(): Promise<ClientDb> {
+	opening ??= openDB<NestmarkDB>(DB_NAME, DB_VERSION, {
+		upgrade(db, oldVersion) {
+			if (oldVersion < 1) {
+				db.createObjectStore('snapshot', { keyPath: 'code' });
+				const outbox = db.createObjectStore('outbox', { keyPath: 'id' });
+				outbox.createIndex('by-fixture', 'fixtureCode');
+				outbox.createIndex('by-created', 'createdAt');
+				outbox.createIndex('by-state', 'state');
+				const photos = db.createObjectStore('photos', { keyPath: 'id' });
+				photos.createIndex('by-event', 'eventId');
+				db.createObjectStore('meta');
+			}
+		},
+		// Another tab opened a newer version (after an app update): let it upgrade.
+		blocking() {
+			void opening?.then((db) => db.close());
+			opening = undefined;
+		},
+		terminated() {
+			opening = undefined;
+		}
+	});
+	return opening;
+}
+
+/** Reads one setting. */
+export async function getMeta<K extends keyof MetaValues>(key: K): Promise<string | undefined> {
+	return (await clientDb()).get('meta', key);
+}
+
+/** Writes one setting. */
+export async function setMeta<K extends keyof MetaValues>(key: K, value: string): Promise<void> {
+	await (await clientDb()).put('meta', value, key);
+}

@@ -1,0 +1,61 @@
+import { z } from 'zod';
+import { FIXTURE_STATUSES, FIXTURE_TYPES, FLAG_KINDS } from './fixture';
+
+/** An open health flag as the card shows it. */
+export const snapshotFlagSchema = z.object({
+	kind: z.enum(FLAG_KINDS),
+	reason: z.string(),
+	raisedAt: z.string()
+});
+
+/** The policy figures the fixture card shows (already resolved: fixture → class → type default). */
+export const snapshotPolicySchema = z.object({
+	repeatabilitySpec_um: z.number().nullable(),
+	ratedLifeCycles: z.number().int().nullable(),
+	breakInMinCycles: z.number().int().nullable(),
+	cleaningIntervalCycles: z.number().int().nullable(),
+	cleaningIntervalDays: z.number().int().nullable(),
+	inspectionIntervalCycles: z.number().int().nullable(),
+	inspectionIntervalDays: z.number().int().nullable()
+});
+
+/** Counters the server derived from the log, as of the snapshot. */
+export const snapshotStateSchema = z.object({
+	totalCycles: z.number().int(),
+	cyclesSinceCleaning: z.number().int(),
+	cyclesSinceInspection: z.number().int(),
+	repeatability_um: z.number().nullable(),
+	lastEventAt: z.string().nullable(),
+	lastCleaningAt: z.string().nullable(),
+	lastInspectionAt: z.string().nullable()
+});
+
+/** One fixture in the device's copy of the register: what the card needs, and no more. */
+export const snapshotFixtureSchema = z.object({
+	code: z.string(),
+	name: z.string(),
+	type: z.enum(FIXTURE_TYPES),
+	status: z.enum(FIXTURE_STATUSES),
+	/** Site / area / location, for "where is it". */
+	location: z.object({ site: z.string(), area: z.string(), name: z.string() }),
+	flags: z.array(snapshotFlagSchema),
+	/** Mass of the moving half, for the heavy-lift caution. */
+	mass_kg: z.number().nullable(),
+	policy: snapshotPolicySchema,
+	state: snapshotStateSchema,
+	updatedAt: z.string()
+});
+export type SnapshotFixture = z.infer<typeof snapshotFixtureSchema>;
+
+/** Body of `GET /api/register-snapshot`; `version` is the same value as the ETag. */
+export const registerSnapshotSchema = z.object({
+	version: z.string(),
+	generatedAt: z.string(),
+	fixtures: z.array(snapshotFixtureSchema)
+});
+export type RegisterSnapshot = z.infer<typeof registerSnapshotSchema>;
+
+/** "Site / Area / Location" in one line. */
+export function locationPath(f: Pick<SnapshotFixture, 'location'>): string {
+	return [f.location.site, f.location.area, f.location.name].join(' / ');
+}
