@@ -129,8 +129,13 @@ setup_env() {
 # System packages
 # ---------------------------------------------------------------------------------------------
 
-have_mariadbd() { command -v mariadbd >/dev/null 2>&1 || [[ -x /usr/sbin/mariadbd ]]; }
-have_mariadb_client() { command -v mariadb >/dev/null 2>&1 && command -v mariadb-admin >/dev/null 2>&1; }
+# An executable on PATH (command -v alone also reports files that cannot be run).
+have_cmd() {
+	local p
+	p="$(command -v "$1" 2>/dev/null)" && [[ -x "$p" && -f "$p" ]]
+}
+have_mariadbd() { (have_cmd mariadbd || [[ -x /usr/sbin/mariadbd ]]) && have_cmd mariadb-install-db; }
+have_mariadb_client() { have_cmd mariadb && have_cmd mariadb-admin; }
 have_chromium() { [[ -x /usr/bin/chromium ]]; }
 
 # Installs missing Debian packages as root; otherwise says exactly what to install and stops.
@@ -158,7 +163,7 @@ ensure_packages() {
 # ---------------------------------------------------------------------------------------------
 
 mariadbd_bin() {
-	if command -v mariadbd >/dev/null 2>&1; then command -v mariadbd; else echo /usr/sbin/mariadbd; fi
+	if have_cmd mariadbd; then command -v mariadbd; else echo /usr/sbin/mariadbd; fi
 }
 
 # Unix socket paths are limited to 108 bytes; deep checkouts fall back to a short path in /tmp.
