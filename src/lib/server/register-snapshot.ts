@@ -1,0 +1,136 @@
+import { createHash } from 'node:crypto';
+import { asc, eq, isNull } from 'drizzle-orm';
+import { DEFAULT_POLICY } from '$lib/domain/policy';
+import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
+import type { Actor } from './guard';
+import { db, schema } from './db';
+
+/*
+ * The copy of the register a phone keeps for offline use: per fixture, what the card shows
+ * (identity, place, status, open flags, caution inputs, policy figures, counters). Its ETag is a
+ * hash of the content itself, so it changes exactly when something a device shows changes.
+ */
+
+const { fixtures, locations, areas, sites, fixtureState, flags, policies } = schema;
+
+type PolicyRow = typeof policies.$inferSelect;
+type PolicyFigures = SnapshotFixture['policy'];
+const POLICY_FIELDS = [
+	'repeatabilitySpec_um',
+	'ratedLifeCycles',
+	'breakInMinCycles',
+	'cleaningIntervalCycles',
+	'cleaningIntervalDays',
+	'inspectionIntervalCycles',
+	'inspectionIntervalDays'
+] as const satisfies readonly (keyof PolicyFigures)[];
+
+/**
+ * Resolves the figures the card shows, most specific first: the fixture's own columns, its
+ * per-field overrides, its policy class, its type's policy, then Nestmark's built-in default.
+ */
+function resolvePolicy(
+	fixture: {
+		repeatabilitySpec_um: number | null;
+		ratedLifeCycles: number | null;
+		policyOverrides: Record<string, number | null> | null;
+	},
+	policy: PolicyRow | undefined
+): PolicyFigures {
+	const out = {} as PolicyFigures;
+	for (const field of POLICY_FIELDS) {
+		const own =
+			field === 'repeatabilitySpec_um'
+				? fixture.repeatabilitySpec_um
+				: field === 'ratedLifeCycles'
+					? fixture.ratedLifeCycles
+					: null;
+		const override = fixture.policyOverrides?.[field];
+		out[field] =
+			own ??
+			(typeof override === 'number' ? override : null) ??
+			policy?.[field] ??
+			DEFAULT_POLICY[field] ??
+			null;
+	}
+	return out;
+}
+
+const iso = (d: Date | null | undefined) => (d ? d.toISOString() : null);
+
+/**
+ * The register entries `actor` may see (every fixture for now; scoping by site comes with the
+ * admin issue), in code order; only the one with `code` when given.
+ */
+export async function snapshotFixtures(_actor: Actor, code?: string): Promise<SnapshotFixture[]> {
+	const base = db
+		.select({
+			f: fixtures,
+			site: sites.name,
+			area: areas.name,
+			location: locations.name,
+			state: fixtureState
+		})
+		.from(fixtures)
+		.innerJoin(locations, eq(locations.id, fixtures.locationId))
+		.innerJoin(areas, eq(areas.id, locations.areaId))
+		.innerJoin(sites, eq(sites.id, areas.siteId))
+		.leftJoin(fixtureState, eq(fixtureState.fixtureId, fixtures.id));
+	const [rows, policyRows, openFlags] = await Promise.all([
+		(code ? base.where(eq(fixtures.code, code)) : base).orderBy(asc(fixtures.code)),
+		db.select().from(policies),
+		db
+			.select({
+				fixtureId: flags.fixtureId,
+				kind: flags.kind,
+				reason: flags.reason,
+				raisedAt: flags.raisedAt
+			})
+			.from(flags)
+			.where(isNull(flags.clearedAt))
+			.orderBy(asc(flags.raisedAt), asc(flags.id))
+	]);
+
+	const byId = new Map(policyRows.map((p) => [p.id, p]));
+	const byType = new Map(policyRows.filter((p) => p.fixtureType).map((p) => [p.fixtureType, p]));
+	const flagsOf = new Map<number, SnapshotFixture['flags']>();
+	for (const fl of openFlags) {
+		const list = flagsOf.get(fl.fixtureId) ?? [];
+		list.push({ kind: fl.kind, reason: fl.reason, raisedAt: fl.raisedAt.toISOString() });
+		flagsOf.set(fl.fixtureId, list);
+	}
+
+	return rows.map(({ f, site, area, location, state }) => ({
+		code: f.code,
+		name: f.name,
+		type: f.type,
+		status: f.status,
+		location: { site, area, name: location },
+		flags: flagsOf.get(f.id) ?? [],
+		mass_kg: f.mass_kg,
+		policy: resolvePolicy(f, (f.policyId ? byId.get(f.policyId) : undefined) ?? byType.get(f.type)),
+		state: {
+			totalCycles: state?.totalCycles ?? 0,
+			cyclesSinceCleaning: state?.cyclesSinceCleaning ?? 0,
+			cyclesSinceInspection: state?.cyclesSinceInspection ?? 0,
+			repeatability_um: state?.repeatability_um ?? null,
+			lastEventAt: iso(state?.lastEventAt),
+			lastCleaningAt: iso(state?.lastCleaningAt),
+			lastInspectionAt: iso(state?.lastInspectionAt)
+		},
+		updatedAt: f.updatedAt.toISOString()
+	}));
+}
+
+/** A strong ETag over the content: same entries, same tag, on any server. */
+export function snapshotEtag(entries: SnapshotFixture[]): string {
+	const hash = createHash('sha256').update(JSON.stringify(entries)).digest('base64url');
+	return `"${hash.slice(0, 32)}"`;
+}
+
+/** True when an If-None-Match header names `etag` (or is `*`); weak forms compare equal, as RFC 9110 §13.1.2 says for this header. */
+export function etagMatches(ifNoneMatch: string | null, etag: string): boolean {
+	if (!ifNoneMatch) return false;
+	const strip = (t: string) => t.trim().replace(/^W\//, '');
+	return ifNoneMatch.split(',').some((t) => t.trim() === '*' || strip(t) === strip(etag));
+}

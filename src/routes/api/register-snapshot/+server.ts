@@ -1,0 +1,43 @@
+import { json } from '@sveltejs/kit';
+import { normaliseFixtureCode } from '$lib/domain/fixture-code';
+import type { RegisterSnapshot } from '$lib/schemas/register-snapshot';
+import { apiUser } from '$lib/server/guard';
+import * as snapshot from '$lib/server/register-snapshot';
+import type { RequestHandler } from './$types';
+
+// The copy must be revalidated every time (If-None-Match), and never shared between people.
+const CACHE_CONTROL = 'private, no-cache';
+
+/**
+ * The register as a device keeps it offline. `?code=` narrows it to one fixture (the fixture
+ * card's online load). Answers 304 when If-None-Match names the current ETag.
+ */
+export const GET: RequestHandler = async ({ locals, url, request }) => {
+	const actor = apiUser(locals);
+	if (actor instanceof Response) return actor;
+
+	const rawCode = url.searchParams.get('code');
+	let code: string | undefined;
+	if (rawCode !== null) {
+		const reading = normaliseFixtureCode(rawCode);
+		if (!reading.ok)
+			return json({ error: reading.error, fields: { code: reading.error } }, { status: 400 });
+		code = reading.code;
+	}
+
+	const entries = await snapshot.snapshotFixtures(actor, code);
+	if (code && entries.length === 0) {
+		return json({ error: `No fixture with code ${code}.` }, { status: 404 });
+	}
+	const etag = snapshot.snapshotEtag(entries);
+	const headers = { ETag: etag, 'Cache-Control': CACHE_CONTROL, Vary: 'Cookie' };
+	if (snapshot.etagMatches(request.headers.get('if-none-match'), etag)) {
+		return new Response(null, { status: 304, headers });
+	}
+	const body: RegisterSnapshot = {
+		version: etag.slice(1, -1),
+		generatedAt: new Date().toISOString(),
+		fixtures: entries
+	};
+	return json(body, { headers });
+};
