@@ -1,6 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import { checkCharacter } from '$lib/domain/fixture-code';
-import { CSV_COLUMNS, MAX_IMPORT_ROWS, parseFixtureCsv, toFixtureCsv } from './fixture-csv';
+import {
+	CSV_COLUMNS,
+	MAX_IMPORT_ROWS,
+	parseFixtureCsv,
+	toFixtureCsv,
+	type CsvRecord
+} from './fixture-csv';
 
 const HEADER = 'code,name,type,site,area,location,status,repeatability_spec_um,mass_kg';
 const CODE = 'NM-4K7Q' + checkCharacter('4K7Q');
@@ -180,9 +186,8 @@ describe('toFixtureCsv', () => {
 	});
 
 	it('writes blanks for missing values', () => {
-		const text = toFixtureCsv([
-			Object.fromEntries(CSV_COLUMNS.map((c) => [c, null])) as Record<string, null>
-		]);
+		const text = toFixtureCsv([Object.fromEntries(CSV_COLUMNS.map((c) => [c, null])) as CsvRecord]);
 		expect(text.split('\r\n')[1]).toBe(','.repeat(CSV_COLUMNS.length - 1));
+		expect(text.endsWith('\r\n')).toBe(true);
 	});
 });

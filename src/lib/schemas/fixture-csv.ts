@@ -228,11 +228,13 @@ export type CsvRecord = Record<CsvColumn, string | number | null>;
 
 /** Writes the register as CSV, with a header line, CRLF line ends and formula-safe cells. */
 export function toFixtureCsv(records: CsvRecord[]): string {
-	return Papa.unparse(
+	const text = Papa.unparse(
 		{
 			fields: [...CSV_COLUMNS],
 			data: records.map((r) => CSV_COLUMNS.map((c) => r[c] ?? ''))
 		},
 		{ newline: '\r\n', escapeFormulae: true }
 	);
+	// Papa ends the file with a line break only when it has no rows; always end with one.
+	return text.endsWith('\r\n') ? text : `${text}\r\n`;
 }
