@@ -325,6 +325,23 @@ db_up() {
 	exec 8>&-
 }
 
+# True when DATABASE_URL names the project's own MariaDB; false for a server run elsewhere
+# (a real shop's), which this script must neither start nor install.
+uses_local_db() {
+	[[ "$DATABASE_URL" =~ ^mysql://([^@/]*@)?([^:/]+)(:([0-9]+))?/ ]] || return 1
+	local host="${BASH_REMATCH[2]}" port="${BASH_REMATCH[4]:-3306}"
+	[[ "$host" == 127.0.0.1 || "$host" == localhost ]] && [[ "$port" == "$NESTMARK_DB_PORT" ]]
+}
+
+# Brings up the local database when DATABASE_URL points at it; otherwise only says where it goes.
+db_up_if_local() {
+	if uses_local_db; then
+		db_up no
+	else
+		say "DATABASE_URL points at another server; not starting the local MariaDB"
+	fi
+}
+
 run_migrate() { tsx scripts/migrate.ts; }
 
 run_seed() {
@@ -431,7 +448,7 @@ cmd_start() {
 	exec 7>"$DATA_DIR/start.lock"
 	flock -n 7 || die "another 'npm start' from this folder is already running"
 	install_traps
-	db_up no
+	db_up_if_local
 	say "applying migrations"
 	run_migrate
 	run_seed
@@ -568,17 +585,20 @@ cmd_db_down() {
 # The db:* commands below leave the server as they found it: stopped again if they started it.
 cmd_db_migrate() {
 	install_traps
-	db_up no
+	db_up_if_local
 	run_migrate
 }
 
 cmd_db_seed() {
 	install_traps
-	db_up no
+	db_up_if_local
 	run_seed
 }
 
 cmd_db_reset() {
+	if ! uses_local_db || [[ ! "$DATABASE_URL" =~ /$DEV_DB(\?.*)?$ ]]; then
+		die "db:reset only resets the project's own '$DEV_DB' database, and DATABASE_URL names another"
+	fi
 	install_traps
 	db_up no
 	say "dropping and recreating the database $DEV_DB"
