@@ -4,7 +4,7 @@
  * costs one 304.
  */
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
-import { registerSnapshotSchema, type SnapshotFixture } from '$lib/schemas/register-snapshot';
+import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
 import { clientDb, getMeta, setMeta } from './db';
 
 export type { SnapshotFixture } from '$lib/schemas/register-snapshot';
@@ -57,6 +57,8 @@ export async function refreshSnapshot(fetcher: typeof fetch = fetch): Promise<Re
 	}
 	if (res.status === 401) return { status: 'signed-out' };
 	if (!res.ok) return { status: 'failed', error: `The server answered ${res.status}.` };
+	// zod is loaded only here, so pages that merely look codes up (the scanner) stay small.
+	const { registerSnapshotSchema } = await import('$lib/schemas/register-snapshot');
 	const parsed = registerSnapshotSchema.safeParse(await res.json());
 	if (!parsed.success) return { status: 'failed', error: 'The register copy was not readable.' };
 	await storeSnapshot(parsed.data.fixtures, res.headers.get('ETag') ?? parsed.data.version);

@@ -1,0 +1,281 @@
+/**
+ * The sync loop: sends the outbox to `POST /api/sync` in batches and keeps the counts the
+ * indicator shows. It runs when the app starts, when the network comes back, when someone taps
+ * "Sync now", and on a timer that backs off while the server cannot be reached.
+ */
+import { getContext, setContext } from 'svelte';
+import { batches, nextSyncDelayMs, SYNC_IDLE_POLL_MS } from '$lib/domain/sync-schedule';
+import { getMeta, setMeta } from './db';
+import { getDeviceId } from './device-id';
+import * as outbox from './outbox';
+import { refreshSnapshot } from './register-snapshot';
+
+/** Events per request (the API takes up to 500; smaller batches fail and retry cheaply). */
+export const SYNC_BATCH_SIZE = 100;
+/** New entries wait this long before sending, so a mistaken tap can be undone. */
+export const UNDO_WINDOW_MS = 5_000;
+
+const isoNow = () => new Date().toISOString();
+
+type BatchOutcome = 'ok' | 'network' | 'signed-out' | 'server';
+
+/** The signed-in person as far as the device knows (from the page), or null. */
+export type SyncUser = { name: string } | null;
+
+/** Sync state for the whole app, shared through setSync/getSync. */
+export class SyncEngine {
+	/** Entries not yet accepted (waiting or in flight). */
+	pending = $state(0);
+	/** Entries the server refused; they wait for a person. */
+	rejected = $state(0);
+	/** Last time the outbox was confirmed delivered (ISO 8601), or null if never. */
+	lastSyncAt = $state<string | null>(null);
+	online = $state(true);
+	/** The server said the session is gone: entries wait until the person signs in again. */
+	signedOut = $state(false);
+	syncing = $state(false);
+	/** The last failure other than a lost network, in words. */
+	problem = $state<string | null>(null);
+	/** Goes up on every outbox change, so views listing entries know to re-read. */
+	revision = $state(0);
+
+	#user: SyncUser = null;
+	#fetch: typeof fetch;
+	#holdMs: number;
+	#failures = 0;
+	#timer: ReturnType<typeof setTimeout> | undefined;
+	#running: Promise<void> | null = null;
+	#again: 'none' | 'normal' | 'forced' = 'none';
+	#lastSnapshotCheck = 0;
+	#stop: (() => void) | undefined;
+
+	constructor(options: { fetch?: typeof fetch; holdMs?: number } = {}) {
+		this.#fetch = options.fetch ?? ((...a) => fetch(...a));
+		this.#holdMs = options.holdMs ?? UNDO_WINDOW_MS;
+	}
+
+	/** Starts the loop (browser only); returns the function that stops it. */
+	start(user: SyncUser): () => void {
+		this.#user = user;
+		this.online = navigator.onLine;
+		const wake = () => {
+			this.online = navigator.onLine;
+			void this.run();
+		};
+		const offline = () => (this.online = false);
+		const visible = () => document.visibilityState === 'visible' && void this.run();
+		const unsubscribe = outbox.onOutboxChange(() => void this.#refreshCounts());
+		window.addEventListener('online', wake);
+		window.addEventListener('offline', offline);
+		document.addEventListener('visibilitychange', visible);
+		void getMeta('lastSyncAt').then((v) => (this.lastSyncAt ??= v ?? null));
+		void this.#refreshCounts().then(() => this.run());
+		this.#stop = () => {
+			clearTimeout(this.#timer);
+			unsubscribe();
+			window.removeEventListener('online', wake);
+			window.removeEventListener('offline', offline);
+			document.removeEventListener('visibilitychange', visible);
+		};
+		return () => this.#stop?.();
+	}
+
+	/** Tells the loop who is signed in now; a new sign-in sends what waited. */
+	setUser(user: SyncUser): void {
+		const was = this.#user;
+		this.#user = user;
+		if (user && (!was || this.signedOut)) {
+			this.signedOut = false;
+			void this.run();
+		}
+	}
+
+	/** Writes an event to the outbox (always first), then lets the loop send it after the undo window. */
+	async log(event: outbox.NewEvent): Promise<outbox.AddResult> {
+		const result = await outbox.addEntry(event, this.#user?.name);
+		// The outbox listener refreshes the counts; here only the send is timed.
+		if (result.ok) this.#schedule(this.#holdMs + 50);
+		return result;
+	}
+
+	/** Takes back an entry that has not been sent yet; false when it is already on its way. */
+	async undo(id: string): Promise<boolean> {
+		return outbox.discardEntry(id, true);
+	}
+
+	/** "Sync now": sends everything waiting at once, undo window or not, and forgets the back-off. */
+	syncNow(): Promise<void> {
+		this.#failures = 0;
+		this.signedOut = false;
+		return this.run(true);
+	}
+
+	/** One pass of the loop; concurrent calls share it and ask for one more pass. */
+	run(force = false): Promise<void> {
+		if (this.#running) {
+			this.#again = force || this.#again === 'forced' ? 'forced' : 'normal';
+			return this.#running;
+		}
+		this.#running = this.#locked(() => this.#pass(force)).finally(() => {
+			this.#running = null;
+			const again = this.#again;
+			this.#again = 'none';
+			if (again !== 'none') void this.run(again === 'forced');
+		});
+		return this.#running;
+	}
+
+	/** Only one tab sends at a time (sending twice is harmless, but wasteful). */
+	async #locked(fn: () => Promise<void>): Promise<void> {
+		if (!('locks' in navigator)) return fn();
+		await navigator.locks.request('nestmark-sync', fn);
+	}
+
+	async #pass(force: boolean): Promise<void> {
+		clearTimeout(this.#timer);
+		this.online = navigator.onLine;
+		if (!this.#user || (this.signedOut && !force) || !this.online) {
+			await this.#refreshCounts();
+			if (this.#user && this.online && !this.signedOut) this.#scheduleNext();
+			return;
+		}
+		this.syncing = true;
+		let outcome: BatchOutcome = 'ok';
+		let delivered = 0;
+		let answered = false;
+		try {
+			const all = await outbox.sendableEntries();
+			const now = Date.now();
+			const due = force ? all : all.filter((e) => now - Date.parse(e.createdAt) >= this.#holdMs);
+			for (const batch of batches(due, SYNC_BATCH_SIZE)) {
+				outcome = await this.#send(batch);
+				if (outcome !== 'ok') break;
+				delivered += batch.length;
+				answered = true;
+			}
+			if (outcome === 'ok' && (await this.#snapshotDue(delivered > 0))) {
+				const r = await refreshSnapshot(this.#fetch);
+				if (r.status === 'signed-out') outcome = 'signed-out';
+				else if (r.status === 'offline') outcome = 'network';
+				else {
+					this.#lastSnapshotCheck = Date.now();
+					answered = true;
+				}
+			}
+			if (outcome === 'ok') {
+				this.#failures = 0;
+				this.problem = null;
+				// "Synced" means the server answered and nothing is left to send.
+				if (answered && due.length === all.length) await this.#markSynced();
+			} else if (outcome === 'signed-out') {
+				this.signedOut = true;
+			} else {
+				this.#failures += 1;
+			}
+		} finally {
+			this.syncing = false;
+			await this.#refreshCounts();
+		}
+		if (outcome !== 'signed-out') this.#scheduleNext();
+	}
+
+	/** Sends one batch and files the answers; see the sync contract in issue 4 §4. */
+	async #send(batch: outbox.OutboxEntry[]): Promise<BatchOutcome> {
+		const marked = await outbox.markSending(batch.map((e) => e.id));
+		if (!marked.length) return 'ok';
+		const ids = marked.map((e) => e.id);
+		let res: Response;
+		try {
+			res = await this.#fetch('/api/sync', {
+				method: 'POST',
+				headers: { 'Content-Type': 'application/json', Accept: 'application/json' },
+				body: JSON.stringify({
+					deviceId: await getDeviceId(),
+					events: marked.map(({ id, fixtureCode, kind, occurredAt, payload }) => ({
+						id,
+						fixtureCode,
+						kind,
+						occurredAt,
+						payload
+					}))
+				})
+			});
+		} catch {
+			// No answer: the server may or may not have stored them. Ids make the retry safe.
+			await outbox.markWaiting(ids);
+			this.online = navigator.onLine;
+			return 'network';
+		}
+		if (res.status === 401) {
+			await outbox.markWaiting(ids);
+			return 'signed-out';
+		}
+		const body = (await res.json().catch(() => null)) as {
+			results?: outbox.SyncResult[];
+			error?: string;
+		} | null;
+		if (res.ok && Array.isArray(body?.results)) {
+			await outbox.applyResults(ids, body.results);
+			return 'ok';
+		}
+		await outbox.markWaiting(ids);
+		if (res.status === 400 || res.status === 413) {
+			// The request as a whole was refused. Send the entries one by one, so that only the
+			// one the server cannot take is set aside and the rest still go through.
+			if (marked.length === 1) {
+				await outbox.rejectEntries(
+					ids,
+					body?.error ?? `The server refused this entry (${res.status}).`
+				);
+				return 'ok';
+			}
+			for (const entry of marked) {
+				const single = await this.#send([entry]);
+				if (single !== 'ok') return single;
+			}
+			return 'ok';
+		}
+		this.problem = body?.error ?? `The server answered ${res.status}; trying again later.`;
+		return 'server';
+	}
+
+	async #snapshotDue(changed: boolean): Promise<boolean> {
+		return changed || Date.now() - this.#lastSnapshotCheck >= SYNC_IDLE_POLL_MS;
+	}
+
+	async #markSynced(): Promise<void> {
+		const at = isoNow();
+		this.lastSyncAt = at;
+		await setMeta('lastSyncAt', at);
+	}
+
+	async #refreshCounts(): Promise<void> {
+		const c = await outbox.outboxCounts();
+		this.pending = c.pending;
+		this.rejected = c.rejected;
+		this.revision += 1;
+	}
+
+	#scheduleNext(): void {
+		this.#schedule(nextSyncDelayMs({ pending: this.pending, failures: this.#failures }));
+	}
+
+	#schedule(ms: number): void {
+		clearTimeout(this.#timer);
+		this.#timer = setTimeout(() => void this.run(), ms);
+	}
+}
+
+const KEY = Symbol('nestmark-sync');
+
+/** Provides the app's sync engine to everything below the calling component. */
+export function setSync(engine: SyncEngine): SyncEngine {
+	return setContext(KEY, engine);
+}
+
+/** The app's sync engine (set by the root layout). */
+export function getSync(): SyncEngine {
+	const engine = getContext<SyncEngine | undefined>(KEY);
+	if (!engine) throw new Error('getSync() needs setSync() in the root layout');
+	return engine;
+}
