@@ -1,0 +1,70 @@
+import { desc, eq } from 'drizzle-orm';
+import { normaliseFixtureCode } from '../domain/fixture-code';
+import { db, schema } from './db';
+
+/** One logged event as the history API returns it. */
+export interface HistoryEntry {
+	id: string;
+	kind: string;
+	occurredAt: string;
+	receivedAt: string;
+	deviceId: string;
+	payload: Record<string, unknown>;
+	user: { id: string; name: string; email: string | null };
+}
+
+/** A fixture's history page: which fixture, and its newest events. */
+export interface FixtureHistory {
+	fixture: { code: string; name: string };
+	events: HistoryEntry[];
+}
+
+/**
+ * The newest `limit` events of the fixture with `code` (any spelling a person might type),
+ * newest first by when they happened; null when no such fixture exists.
+ */
+export async function fixtureEvents(code: string, limit: number): Promise<FixtureHistory | null> {
+	const reading = normaliseFixtureCode(code);
+	if (!reading.ok) return null;
+
+	const [fixture] = await db
+		.select({ id: schema.fixtures.id, code: schema.fixtures.code, name: schema.fixtures.name })
+		.from(schema.fixtures)
+		.where(eq(schema.fixtures.code, reading.code))
+		.limit(1);
+	if (!fixture) return null;
+
+	const e = schema.events;
+	const rows = await db
+		.select({
+			id: e.id,
+			kind: e.kind,
+			occurredAt: e.occurredAt,
+			receivedAt: e.receivedAt,
+			deviceId: e.deviceId,
+			payload: e.payload,
+			userId: e.userId,
+			userName: schema.users.name,
+			userEmail: schema.users.email
+		})
+		.from(e)
+		.innerJoin(schema.users, eq(schema.users.id, e.userId))
+		.where(eq(e.fixtureId, fixture.id))
+		// The id breaks ties so that pages are stable when two entries share a millisecond.
+		.orderBy(desc(e.occurredAt), desc(e.id))
+		.limit(limit);
+
+	return {
+		fixture: { code: fixture.code, name: fixture.name },
+		events: rows.map((r) => ({
+			id: r.id,
+			kind: r.kind,
+			occurredAt: r.occurredAt.toISOString(),
+			receivedAt: r.receivedAt.toISOString(),
+			deviceId: r.deviceId,
+			payload: r.payload,
+			// People who signed in by e-mail link may have no name (see STACK.md).
+			user: { id: r.userId, name: r.userName ?? r.userEmail ?? r.userId, email: r.userEmail }
+		}))
+	};
+}

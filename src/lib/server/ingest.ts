@@ -1,0 +1,736 @@
+/**
+ * Ingest of synced events: the server side of the phone's outbox.
+ *
+ * A batch is answered per event (accepted, duplicate or rejected) and written in one database
+ * transaction: the new events, the derived state of every fixture they touch, and the flags that
+ * state raises or clears. A failure anywhere rolls the whole batch back; the phone keeps its
+ * outbox and the retry gets `accepted` or `duplicate`, never a lost or doubled event.
+ *
+ * Decisions worth knowing:
+ * - Content hash. SHA-256 of the canonical JSON of { fixtureCode (canonical), kind, occurredAt
+ *   (UTC, ms), payload (as parsed, defaults filled, keys sorted) }. The id, the device and the
+ *   user are left out on purpose: the hash says *what happened*, not who carried it, so an outbox
+ *   entry re-sent after another person signed in on the same phone is still a duplicate, not a
+ *   clash. The same id with other content is refused and the stored event is never overwritten.
+ * - Order of folding. State is a fold over the events in (occurredAt, id) order — the order things
+ *   happened at the fixture, not the order they reached the server — so `cycles since cleaning`
+ *   means what it says even when a phone syncs an hour of offline work late. New events that all
+ *   come after the last folded one are applied incrementally (the usual case, O(1) per event);
+ *   if any is older, that fixture is recomputed from its full history in the same transaction.
+ *   Either way the stored state equals a rebuild that folds the history in (occurredAt, id) order.
+ * - Flags. In the incremental case flags are evaluated after every new event, so each flag
+ *   records the very event that raised or cleared it (a flag may open and close inside one batch;
+ *   both are kept as history). After a recompute they are evaluated once, and changes are
+ *   attributed to the latest new event of that fixture. `now` (the receive time) is the clock
+ *   for calendar rules and for raisedAt / clearedAt.
+ * - Concurrency. The transaction runs at READ COMMITTED and locks the touched fixture_state rows
+ *   (FOR UPDATE, in fixture id order, so two batches cannot deadlock on them). Two phones sending
+ *   the same new id at once: the second waits on the fixture lock, or hits the primary key; the
+ *   whole batch is then retried and answers `duplicate`.
+ * - Speed. A handful of statements per batch, not per event: one lookup of the fixtures, one of
+ *   the existing ids, one locking read of the states, one multi-row insert of the events, one read
+ *   of the open flags, one multi-row upsert of the states and one of the flags.
+ */
+import { createHash } from 'node:crypto';
+import type { PoolConnection, RowDataPacket } from 'mysql2/promise';
+import { normaliseFixtureCode } from '../domain/fixture-code';
+import {
+	applyEvent,
+	compareEvents,
+	evaluateFlags,
+	initialState,
+	recentRepeatability,
+	recompute,
+	type Flag,
+	type FixtureState,
+	type InitialStateOptions
+} from '../domain/health';
+import type { Policy } from '../domain/policy';
+import {
+	EVENT_KINDS_BY_ROLE,
+	MAX_EVENTS_PER_SYNC,
+	mayLogKind,
+	parseSyncEvent,
+	syncRequestSchema,
+	type EventKind,
+	type FixtureEvent,
+	type SyncEvent
+} from '../schemas/events';
+import type { FixtureType } from '../schemas/fixture';
+import { ROLES, type Role } from '../schemas/roles';
+import { getPool } from './db';
+import { canonicalJson } from './fixtures';
+import type { Actor } from './guard';
+import { effectivePolicy, type PolicySubject } from './policies';
+
+/** Largest sync request body accepted (declared and actually read). */
+export const SYNC_BODY_LIMIT_BYTES = 2 * 1024 * 1024;
+/** How far ahead of the server clock an event's occurredAt may be (phone clocks drift). */
+export const FUTURE_TOLERANCE_MS = 10 * 60 * 1000;
+/** Attempts of the batch transaction when it meets a deadlock, lock timeout or id race. */
+const TRANSACTION_ATTEMPTS = 4;
+
+export { MAX_EVENTS_PER_SYNC };
+
+/** The answer for one event of a batch. */
+export interface SyncResult {
+	id: string;
+	status: 'accepted' | 'duplicate' | 'rejected';
+	error?: string;
+}
+
+/** Options of ingestBatch. */
+export interface IngestOptions {
+	/** The server clock for this batch (receivedAt, flag times, the future check); default now. */
+	now?: Date;
+}
+
+/** What the envelope check found: the events to judge one by one, or why the request is refused. */
+export type Envelope =
+	| { ok: true; deviceId: string; events: unknown[] }
+	| { ok: false; error: string; fields?: Record<string, string> };
+
+/**
+ * Checks the request envelope only ({ deviceId, events: 1..500 }); events are judged one by one
+ * later, so one bad event never refuses the others.
+ */
+export function parseEnvelope(body: unknown): Envelope {
+	if (body === null || typeof body !== 'object' || Array.isArray(body)) {
+		return { ok: false, error: 'The body must be a JSON object { deviceId, events }.' };
+	}
+	const parsed = syncRequestSchema.safeParse(body);
+	if (parsed.success)
+		return { ok: true, deviceId: parsed.data.deviceId, events: parsed.data.events };
+	const fields: Record<string, string> = {};
+	for (const issue of parsed.error.issues) {
+		const key = issue.path.length ? issue.path.join('.') : '(body)';
+		const message =
+			issue.code === 'invalid_type' && issue.path[0] === 'events'
+				? 'events must be an array of events'
+				: issue.code === 'invalid_type' && issue.path[0] === 'deviceId'
+					? 'deviceId is required (a text of 1 to 100 characters)'
+					: issue.message;
+		fields[key] = fields[key] ? `${fields[key]}; ${message}` : message;
+	}
+	const error = Object.entries(fields)
+		.map(([k, m]) => `${k}: ${m}`)
+		.join('; ');
+	return { ok: false, error: `Malformed sync request — ${error}.`, fields };
+}
+
+/* ------------------------------------------------------------------------------------------ */
+/* Judging single events                                                                      */
+
+const ROLE_PLURALS: Record<Role, string> = {
+	operator: 'operators',
+	technician: 'technicians',
+	supervisor: 'supervisors',
+	planner: 'planners',
+	admin: 'admins'
+};
+
+const KIND_PLURALS: Record<EventKind, string> = {
+	reseat: 'reseats',
+	cleaning: 'cleanings',
+	inspection: 'inspections',
+	'break-in': 'break-in runs',
+	'part-swap': 'part swaps',
+	move: 'moves',
+	hold: 'holds',
+	release: 'releases',
+	note: 'notes'
+};
+
+const capitalise = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
+
+function listWords(words: string[], joiner = 'and'): string {
+	if (words.length <= 1) return words.join('');
+	return `${words.slice(0, -1).join(', ')} ${joiner} ${words.at(-1)}`;
+}
+
+/** "Operators cannot log inspections; a technician, supervisor or admin can." */
+export function roleRefusal(roles: readonly Role[], kind: EventKind): string {
+	const who = roles.length
+		? `${capitalise(listWords(ROLES.filter((r) => roles.includes(r)).map((r) => ROLE_PLURALS[r])))} cannot`
+		: 'Your account has no role that may';
+	const allowed = ROLES.filter((r) => EVENT_KINDS_BY_ROLE[r].includes(kind));
+	const hint = allowed.length ? `; a ${listWords(allowed, 'or')} can` : '';
+	return `${who} log ${KIND_PLURALS[kind]}${hint}.`;
+}
+
+function minutesAhead(ms: number): string {
+	const minutes = Math.round(ms / 60_000);
+	if (minutes < 120) return `${minutes} minutes`;
+	const hours = Math.round(minutes / 60);
+	if (hours < 72) return `${hours} hours`;
+	return `${Math.round(hours / 24)} days`;
+}
+
+function validationMessage(errors: Record<string, string[]>): string {
+	const parts = Object.entries(errors).map(([path, messages]) => `${path}: ${messages.join(', ')}`);
+	return `Invalid event — ${parts.join('; ')}.`;
+}
+
+/** SHA-256 of what an event says happened (see the module comment for what is left out). */
+export function contentHash(e: Pick<SyncEvent, 'fixtureCode' | 'kind' | 'occurredAt' | 'payload'>) {
+	const canonical = canonicalJson({
+		fixtureCode: e.fixtureCode,
+		kind: e.kind,
+		occurredAt: e.occurredAt,
+		payload: e.payload
+	});
+	return createHash('sha256').update(canonical).digest('hex');
+}
+
+/** What ingest needs to know about a fixture. */
+interface FixtureRow extends PolicySubject {
+	id: number;
+	code: string;
+	status: string;
+	commissionedOn: string | null;
+}
+
+/**
+ * How a fixture's state starts before its first event: from its commissioning date when known, and
+ * needing a break-in (the domain's default for a fixture new to the register). The rebuild must
+ * start from the same, or it would not reproduce the stored state.
+ */
+export function initialStateOptions(f: { commissionedOn: string | null }): InitialStateOptions {
+	return { since: f.commissionedOn ? `${f.commissionedOn}T00:00:00.000Z` : null };
+}
+
+/** The state a fixture starts from before its first event (see initialStateOptions). */
+export function initialStateFor(f: { commissionedOn: string | null }): FixtureState {
+	return initialState(initialStateOptions(f));
+}
+
+/** One event of the batch on its way through ingest. */
+interface Item {
+	index: number;
+	/** The id as the phone sent it, echoed in the result. */
+	sentId: string;
+	/**
+	 * The id in lower case, as stored: the column compares ids without regard to case, so one
+	 * spelling must be chosen for the fold order to match a rebuild.
+	 */
+	id: string;
+	event?: SyncEvent;
+	hash?: string;
+	fixture?: FixtureRow;
+	/** First event of the batch with the same id, when this one repeats it. */
+	repeatOf?: Item;
+	result?: SyncResult;
+}
+
+/* ------------------------------------------------------------------------------------------ */
+/* The batch                                                                                  */
+
+/**
+ * Ingests one sync batch for `actor` from device `deviceId`: validates each event, stores the new
+ * ones and updates the derived state and flags of their fixtures in one transaction. Returns one
+ * result per event, in request order.
+ */
+export async function ingestBatch(
+	actor: Actor,
+	deviceId: string,
+	rawEvents: readonly unknown[],
+	options: IngestOptions = {}
+): Promise<SyncResult[]> {
+	const now = options.now ?? new Date();
+	const items: Item[] = rawEvents.map((raw, index) => {
+		const parsed = parseSyncEvent(raw);
+		if (!parsed.ok) {
+			const sentId = parsed.id ?? '';
+			return {
+				index,
+				sentId,
+				id: sentId.toLowerCase(),
+				result: { id: sentId, status: 'rejected', error: validationMessage(parsed.errors) }
+			};
+		}
+		const id = parsed.event.id.toLowerCase();
+		return { index, sentId: parsed.event.id, id, event: { ...parsed.event, id } };
+	});
+
+	// A repeated id inside the batch: the first is judged, the later ones follow it.
+	const firstById = new Map<string, Item>();
+	for (const item of items) {
+		if (!item.event) continue;
+		const first = firstById.get(item.id);
+		if (first) item.repeatOf = first;
+		else firstById.set(item.id, item);
+	}
+
+	const conn = await getPool().getConnection();
+	try {
+		const fixtures = await lookUpFixtures(conn, items);
+		for (const item of items) {
+			if (!item.event) continue;
+			const reading = normaliseFixtureCode(item.event.fixtureCode);
+			item.fixture = reading.ok ? fixtures.get(reading.code) : undefined;
+			// The canonical code when it is known, so "nm-4k7qx" and "NM-4K7QX" hash alike.
+			const code = item.fixture?.code ?? item.event.fixtureCode;
+			item.hash = contentHash({ ...item.event, fixtureCode: code });
+		}
+		const policies = await policiesFor(
+			new Set(items.filter((i) => i.fixture && !i.repeatOf).map((i) => i.fixture!))
+		);
+
+		for (let attempt = 1; ; attempt++) {
+			try {
+				await writeBatch(conn, actor, deviceId, items, policies, now);
+				break;
+			} catch (err) {
+				if (attempt >= TRANSACTION_ATTEMPTS || !isRetryable(err)) throw err;
+				// Forget this attempt's verdicts on the new events and judge them again.
+				for (const item of items) if (item.event) item.result = undefined;
+			}
+		}
+	} finally {
+		conn.release();
+	}
+
+	return items.map((item) => item.result!);
+}
+
+function isRetryable(err: unknown): boolean {
+	const errno = (err as { errno?: number }).errno;
+	// 1213 deadlock, 1205 lock wait timeout, 1062 an id inserted by a concurrent batch.
+	return errno === 1213 || errno === 1205 || errno === 1062;
+}
+
+async function lookUpFixtures(
+	conn: PoolConnection,
+	items: Item[]
+): Promise<Map<string, FixtureRow>> {
+	const codes = new Set<string>();
+	for (const item of items) {
+		if (!item.event) continue;
+		const reading = normaliseFixtureCode(item.event.fixtureCode);
+		if (reading.ok) codes.add(reading.code);
+	}
+	const map = new Map<string, FixtureRow>();
+	if (!codes.size) return map;
+	const [rows] = await conn.query<RowDataPacket[]>(
+		`SELECT id, code, type, status, policy_id, policy_overrides, repeatability_spec_um,
+		        rated_life_cycles, DATE_FORMAT(commissioned_on, '%Y-%m-%d') AS commissioned_on
+		   FROM fixtures WHERE code IN (?)`,
+		[[...codes]]
+	);
+	for (const r of rows) {
+		map.set(r.code, {
+			id: r.id,
+			code: r.code,
+			type: r.type as FixtureType,
+			status: r.status,
+			policyId: r.policy_id,
+			policyOverrides: parseJson(r.policy_overrides),
+			repeatabilitySpec_um: r.repeatability_spec_um,
+			ratedLifeCycles: r.rated_life_cycles,
+			commissionedOn: r.commissioned_on
+		});
+	}
+	return map;
+}
+
+function parseJson<T>(value: unknown): T | null {
+	if (value === null || value === undefined) return null;
+	return (typeof value === 'string' ? JSON.parse(value) : value) as T;
+}
+
+/** The effective policy of each fixture, asked once per distinct set of policy inputs. */
+async function policiesFor(fixtures: Set<FixtureRow>): Promise<Map<number, Policy>> {
+	const byKey = new Map<string, { subject: PolicySubject; ids: number[] }>();
+	for (const f of fixtures) {
+		const subject: PolicySubject = {
+			type: f.type,
+			policyId: f.policyId,
+			policyOverrides: f.policyOverrides,
+			repeatabilitySpec_um: f.repeatabilitySpec_um,
+			ratedLifeCycles: f.ratedLifeCycles
+		};
+		const key = canonicalJson(subject);
+		const entry = byKey.get(key);
+		if (entry) entry.ids.push(f.id);
+		else byKey.set(key, { subject, ids: [f.id] });
+	}
+	const out = new Map<number, Policy>();
+	await Promise.all(
+		[...byKey.values()].map(async ({ subject, ids }) => {
+			const entries = await effectivePolicy(subject);
+			const policy = Object.fromEntries(
+				entries.map((e) => [e.field, e.value])
+			) as unknown as Policy;
+			for (const id of ids) out.set(id, policy);
+		})
+	);
+	return out;
+}
+
+/** Judges an event that is not stored yet; undefined when it may be accepted. */
+function refusal(item: Item, actor: Actor, now: Date): string | undefined {
+	const e = item.event!;
+	if (!item.fixture) {
+		const reading = normaliseFixtureCode(e.fixtureCode);
+		return reading.ok
+			? `No fixture with code ${reading.code} in the register.`
+			: `Fixture code "${e.fixtureCode}": ${reading.error}`;
+	}
+	if (!mayLogKind(actor.roles, e.kind)) return roleRefusal(actor.roles, e.kind);
+	const ahead = Date.parse(e.occurredAt) - now.getTime();
+	if (ahead > FUTURE_TOLERANCE_MS) {
+		return `occurredAt ${e.occurredAt} is ${minutesAhead(ahead)} ahead of the server clock (at most 10 minutes allowed); check the phone's date and time.`;
+	}
+	return undefined;
+}
+
+const CLASH = 'An event with this id already exists with different content; it was not changed.';
+
+/** The transaction: judge against stored ids, insert, fold, flag, upsert. */
+async function writeBatch(
+	conn: PoolConnection,
+	actor: Actor,
+	deviceId: string,
+	items: Item[],
+	policies: Map<number, Policy>,
+	now: Date
+): Promise<void> {
+	await conn.query('SET TRANSACTION ISOLATION LEVEL READ COMMITTED');
+	await conn.beginTransaction();
+	try {
+		const firsts = items.filter((i) => i.event && !i.repeatOf);
+		const stored = new Map<string, string>();
+		if (firsts.length) {
+			const [rows] = await conn.query<RowDataPacket[]>(
+				'SELECT id, content_hash FROM events WHERE id IN (?)',
+				[firsts.map((i) => i.id)]
+			);
+			for (const r of rows) stored.set(String(r.id).toLowerCase(), r.content_hash);
+		}
+
+		const fresh: Item[] = [];
+		for (const item of firsts) {
+			const hash = stored.get(item.id);
+			if (hash !== undefined) {
+				item.result =
+					hash === item.hash
+						? { id: item.sentId, status: 'duplicate' }
+						: { id: item.sentId, status: 'rejected', error: CLASH };
+				continue;
+			}
+			const why = refusal(item, actor, now);
+			if (why) item.result = { id: item.sentId, status: 'rejected', error: why };
+			else {
+				item.result = { id: item.sentId, status: 'accepted' };
+				fresh.push(item);
+			}
+		}
+		for (const item of items) {
+			const first = item.repeatOf;
+			if (!first) continue;
+			const same = first.hash === item.hash;
+			if (first.result!.status === 'rejected') {
+				item.result = {
+					id: item.sentId,
+					status: 'rejected',
+					error: same ? first.result!.error : 'Another event in this batch has the same id.'
+				};
+			} else {
+				item.result = same
+					? { id: item.sentId, status: 'duplicate' }
+					: { id: item.sentId, status: 'rejected', error: CLASH };
+			}
+		}
+
+		if (fresh.length) await storeAndFold(conn, actor, deviceId, fresh, policies, now);
+		await conn.commit();
+	} catch (err) {
+		await conn.rollback().catch(() => undefined);
+		throw err;
+	}
+}
+
+interface StateRow {
+	state: FixtureState;
+	before: FixtureState;
+	recompute: boolean;
+	newEvents: Item[];
+	fixture: FixtureRow;
+}
+
+interface OpenFlag {
+	id: number | null;
+	fixtureId: number;
+	kind: Flag['kind'];
+	reason: string;
+	figures: Flag['figures'];
+	raisedAt: Date;
+	raisedByEventId: string | null;
+	clearedAt: Date | null;
+	clearedByEventId: string | null;
+	changed: boolean;
+}
+
+async function storeAndFold(
+	conn: PoolConnection,
+	actor: Actor,
+	deviceId: string,
+	fresh: Item[],
+	policies: Map<number, Policy>,
+	now: Date
+): Promise<void> {
+	const byFixture = new Map<number, StateRow>();
+	for (const item of fresh) {
+		const f = item.fixture!;
+		let row = byFixture.get(f.id);
+		if (!row) {
+			const start = initialStateFor(f);
+			row = { state: start, before: start, recompute: false, newEvents: [], fixture: f };
+			byFixture.set(f.id, row);
+		}
+		row.newEvents.push(item);
+	}
+	const fixtureIds = [...byFixture.keys()].sort((a, b) => a - b);
+
+	// Lock the states first, in id order; a fixture without a state row gets one, then the lock.
+	const states = await lockStates(conn, fixtureIds);
+	const missing = fixtureIds.filter((id) => !states.has(id));
+	if (missing.length) {
+		await conn.query('INSERT IGNORE INTO fixture_state (fixture_id, data, updated_at) VALUES ?', [
+			missing.map((id) => [id, JSON.stringify(initialStateFor(byFixture.get(id)!.fixture)), now])
+		]);
+		for (const [id, state] of await lockStates(conn, missing)) states.set(id, state);
+	}
+
+	await conn.query(
+		`INSERT INTO events (id, fixture_id, kind, occurred_at, received_at, user_id, device_id, payload, content_hash)
+		 VALUES ?`,
+		[
+			fresh.map((item) => {
+				const e = item.event!;
+				return [
+					e.id,
+					item.fixture!.id,
+					e.kind,
+					new Date(e.occurredAt),
+					now,
+					actor.id,
+					deviceId,
+					JSON.stringify(e.payload),
+					item.hash
+				];
+			})
+		]
+	);
+
+	const openFlags = await loadOpenFlags(conn, fixtureIds);
+	const flagWrites: OpenFlag[] = [];
+
+	for (const id of fixtureIds) {
+		const row = byFixture.get(id)!;
+		const policy = policies.get(id)!;
+		const current = states.get(id)!;
+		row.before = current;
+		const events = row.newEvents.map((i) => toFixtureEvent(i.event!)).sort(compareEvents);
+		const last =
+			current.lastEventAt && current.lastEventId
+				? { occurredAt: current.lastEventAt, id: current.lastEventId }
+				: null;
+		row.recompute = last !== null && compareEvents(events[0], last) <= 0;
+
+		const open = new Map<Flag['kind'], OpenFlag>();
+		for (const f of openFlags.get(id) ?? []) open.set(f.kind, f);
+		const settle = (flags: Flag[], eventId: string) => {
+			const seen = new Set<Flag['kind']>();
+			for (const flag of flags) {
+				seen.add(flag.kind);
+				const o = open.get(flag.kind);
+				if (!o) {
+					const raised: OpenFlag = {
+						id: null,
+						fixtureId: id,
+						kind: flag.kind,
+						reason: flag.reason,
+						figures: flag.figures,
+						raisedAt: now,
+						raisedByEventId: eventId,
+						clearedAt: null,
+						clearedByEventId: null,
+						changed: true
+					};
+					open.set(flag.kind, raised);
+					flagWrites.push(raised);
+				} else if (
+					o.reason !== flag.reason ||
+					canonicalJson(o.figures) !== canonicalJson(flag.figures)
+				) {
+					o.reason = flag.reason;
+					o.figures = flag.figures;
+					if (!o.changed) flagWrites.push(o);
+					o.changed = true;
+				}
+			}
+			for (const [kind, o] of open) {
+				if (seen.has(kind)) continue;
+				o.clearedAt = now;
+				o.clearedByEventId = eventId;
+				if (!o.changed) flagWrites.push(o);
+				o.changed = true;
+				open.delete(kind);
+			}
+		};
+
+		if (row.recompute) {
+			const history = await loadHistory(conn, id);
+			row.state = recompute(history, policy, initialStateOptions(row.fixture));
+			settle(evaluateFlags(row.state, policy, now), events.at(-1)!.id);
+		} else {
+			let state = current;
+			for (const ev of events) {
+				state = applyEvent(state, ev, policy);
+				settle(evaluateFlags(state, policy, now), ev.id);
+			}
+			row.state = state;
+		}
+	}
+
+	await upsertStates(conn, [...byFixture.values()], now);
+	if (flagWrites.length) await writeFlags(conn, flagWrites);
+	await syncFixtureStatus(conn, [...byFixture.values()]);
+}
+
+function toFixtureEvent(e: SyncEvent): FixtureEvent {
+	return { id: e.id, kind: e.kind, occurredAt: e.occurredAt, payload: e.payload } as FixtureEvent;
+}
+
+async function lockStates(conn: PoolConnection, ids: number[]): Promise<Map<number, FixtureState>> {
+	const [rows] = await conn.query<RowDataPacket[]>(
+		'SELECT fixture_id, data FROM fixture_state WHERE fixture_id IN (?) ORDER BY fixture_id FOR UPDATE',
+		[ids]
+	);
+	return new Map(rows.map((r) => [r.fixture_id as number, parseJson<FixtureState>(r.data)!]));
+}
+
+/** A fixture's whole history in folding order (this transaction's inserts included). */
+async function loadHistory(conn: PoolConnection, fixtureId: number): Promise<FixtureEvent[]> {
+	const [rows] = await conn.query<RowDataPacket[]>(
+		'SELECT id, kind, occurred_at, payload FROM events WHERE fixture_id = ? ORDER BY occurred_at, id',
+		[fixtureId]
+	);
+	const events = rows.map(
+		(r) =>
+			({
+				id: r.id,
+				kind: r.kind,
+				occurredAt: (r.occurred_at as Date).toISOString(),
+				payload: parseJson(r.payload)
+			}) as FixtureEvent
+	);
+	// The database's collation orders ids case-insensitively; the fold order is the domain's.
+	return events.sort(compareEvents);
+}
+
+async function loadOpenFlags(
+	conn: PoolConnection,
+	ids: number[]
+): Promise<Map<number, OpenFlag[]>> {
+	const [rows] = await conn.query<RowDataPacket[]>(
+		`SELECT id, fixture_id, kind, reason, figures, raised_at, raised_by_event_id
+		   FROM flags WHERE fixture_id IN (?) AND cleared_at IS NULL`,
+		[ids]
+	);
+	const map = new Map<number, OpenFlag[]>();
+	for (const r of rows) {
+		const flag: OpenFlag = {
+			id: r.id,
+			fixtureId: r.fixture_id,
+			kind: r.kind,
+			reason: r.reason,
+			figures: parseJson(r.figures) ?? {},
+			raisedAt: r.raised_at,
+			raisedByEventId: r.raised_by_event_id,
+			clearedAt: null,
+			clearedByEventId: null,
+			changed: false
+		};
+		map.set(flag.fixtureId, [...(map.get(flag.fixtureId) ?? []), flag]);
+	}
+	return map;
+}
+
+const isoToDate = (iso: string | null) => (iso === null ? null : new Date(iso));
+
+async function upsertStates(conn: PoolConnection, rows: StateRow[], now: Date): Promise<void> {
+	await conn.query(
+		`INSERT INTO fixture_state (fixture_id, data, event_count, total_cycles, cycles_since_cleaning,
+		   cycles_since_inspection, cycles_since_part_swap, repeatability_um, wear_grade,
+		   last_event_at, last_cleaning_at, last_inspection_at, updated_at)
+		 VALUES ?
+		 ON DUPLICATE KEY UPDATE data = VALUES(data), event_count = VALUES(event_count),
+		   total_cycles = VALUES(total_cycles), cycles_since_cleaning = VALUES(cycles_since_cleaning),
+		   cycles_since_inspection = VALUES(cycles_since_inspection),
+		   cycles_since_part_swap = VALUES(cycles_since_part_swap),
+		   repeatability_um = VALUES(repeatability_um), wear_grade = VALUES(wear_grade),
+		   last_event_at = VALUES(last_event_at), last_cleaning_at = VALUES(last_cleaning_at),
+		   last_inspection_at = VALUES(last_inspection_at), updated_at = VALUES(updated_at)`,
+		[rows.map((r) => stateColumns(r.fixture.id, r.state, now))]
+	);
+}
+
+/** The fixture_state row for a state: the JSON and the columns copied out for filtering. */
+export function stateColumns(fixtureId: number, s: FixtureState, now: Date): unknown[] {
+	return [
+		fixtureId,
+		JSON.stringify(s),
+		s.eventCount,
+		s.totalCycles,
+		s.cyclesSinceCleaning,
+		s.cyclesSinceInspection,
+		s.cyclesSincePartSwap,
+		recentRepeatability(s)?.R ?? null,
+		s.wear.grade,
+		isoToDate(s.lastEventAt),
+		isoToDate(s.lastCleaningAt),
+		isoToDate(s.lastInspectionAt),
+		now
+	];
+}
+
+/** Raises, updates and clears flags in one statement (new rows have no id yet). */
+async function writeFlags(conn: PoolConnection, flags: OpenFlag[]): Promise<void> {
+	await conn.query(
+		`INSERT INTO flags (id, fixture_id, kind, reason, figures, raised_at, raised_by_event_id,
+		   cleared_at, cleared_by_event_id)
+		 VALUES ?
+		 ON DUPLICATE KEY UPDATE reason = VALUES(reason), figures = VALUES(figures),
+		   cleared_at = VALUES(cleared_at), cleared_by_event_id = VALUES(cleared_by_event_id)`,
+		[
+			flags.map((f) => [
+				f.id,
+				f.fixtureId,
+				f.kind,
+				f.reason,
+				JSON.stringify(f.figures),
+				f.raisedAt,
+				f.raisedByEventId,
+				f.clearedAt,
+				f.clearedByEventId
+			])
+		]
+	);
+}
+
+/**
+ * Keeps the register's status in step when the state's status changed in this batch (a hold, a
+ * release, a break-in begun or completed). Retired fixtures stay retired, and a status set by hand
+ * in the register stands until the next change comes from the log.
+ */
+async function syncFixtureStatus(conn: PoolConnection, rows: StateRow[]): Promise<void> {
+	const changed = rows.filter((r) => r.state.status !== r.before.status);
+	if (!changed.length) return;
+	const cases = changed.map(() => 'WHEN ? THEN ?').join(' ');
+	await conn.query(
+		`UPDATE fixtures SET status = CASE id ${cases} END WHERE id IN (?) AND status <> 'retired'`,
+		[...changed.flatMap((r) => [r.fixture.id, r.state.status]), changed.map((r) => r.fixture.id)]
+	);
+}
