@@ -134,7 +134,11 @@ function pageContent(page: PDFPage): string {
 	const arr = contents as PDFArray;
 	return arr
 		.asArray()
-		.map((ref) => streamText(page.doc.context.lookup(ref, PDFRawStream)))
+		.map((ref) => {
+			const stream = page.doc.context.lookup(ref);
+			if (!(stream instanceof PDFRawStream)) throw new Error('content is not a raw stream');
+			return streamText(stream);
+		})
 		.join('\n');
 }
 
@@ -155,7 +159,8 @@ function placedQrs(page: PDFPage): PlacedQr[] {
 	const re = /q\s+(\S+) 0 0 (\S+) (\S+) (\S+) cm\s+\/(\S+) Do\s+Q/g;
 	for (const m of pageContent(page).matchAll(re)) {
 		if (!m[5].startsWith('QR')) continue;
-		const form = xobjects.lookup(PDFName.of(m[5]), PDFRawStream);
+		const form = xobjects.lookup(PDFName.of(m[5]));
+		if (!(form instanceof PDFRawStream)) throw new Error(`${m[5]} is not a form XObject`);
 		const bbox = form.dict.lookup(PDFName.of('BBox'), PDFArray).asArray();
 		const [x0, , x1] = bbox.map((v) => (v as PDFNumber).asNumber());
 		const size = x1 - x0 - 2 * QR_QUIET_ZONE;
@@ -238,7 +243,7 @@ describe('label URL and QR symbol', () => {
 		const m = labelQrMatrix(C, ORIGIN);
 		expect(png.width).toBe((m.size + 2 * QR_QUIET_ZONE) * scale);
 		expect(decodeQr(png)).toBe(`${ORIGIN}/f/${C}`);
-		// Every pixel of the quiet zone is light (ISO/IEC 18004 §5.3.8: at least 4 modules).
+		// Every pixel of the quiet zone is light (ISO/IEC 18004: at least 4 modules wide).
 		const qz = QR_QUIET_ZONE * scale;
 		for (let y = 0; y < png.height; y++) {
 			for (let x = 0; x < png.width; x++) {
@@ -287,7 +292,8 @@ describe('label sheet PDF', () => {
 		// 210 × 297 mm × 72/25.4 = 595.276 × 841.890 pt (ISO 216 A4)
 		expect(page.getWidth()).toBeCloseTo(595.2756, 3);
 		expect(page.getHeight()).toBeCloseTo(841.8898, 3);
-		expect(pdf.getInfoDict().lookup(PDFName.of(LABEL_COUNT_KEY), PDFNumber).asNumber()).toBe(3);
+		const info = pdf.context.lookup(pdf.context.trailerInfo.Info, PDFDict);
+		expect(info.lookup(PDFName.of(LABEL_COUNT_KEY), PDFNumber).asNumber()).toBe(3);
 
 		const qrs = placedQrs(page);
 		expect(qrs.map((q) => q.url)).toEqual(labels.map((x) => `${ORIGIN}/f/${x.code}`));

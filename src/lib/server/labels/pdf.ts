@@ -1,4 +1,5 @@
 import {
+	PDFDict,
 	PDFDocument,
 	PDFName,
 	PDFNumber,
@@ -227,7 +228,9 @@ export async function renderLabelsPdf(
 	doc.setCreator('Nestmark');
 	doc.setProducer('Nestmark label renderer (pdf-lib)');
 	doc.setCreationDate(new Date());
-	doc.getInfoDict().set(PDFName.of(LABEL_COUNT_KEY), PDFNumber.of(labels.length));
+	// The setters above made the document information dictionary; add the count beside them.
+	const info = doc.context.lookup(doc.context.trailerInfo.Info, PDFDict);
+	info.set(PDFName.of(LABEL_COUNT_KEY), PDFNumber.of(labels.length));
 
 	const fonts: Fonts = {
 		code: await doc.embedFont(StandardFonts.CourierBold),
