@@ -18,11 +18,12 @@
  *   come after the last folded one are applied incrementally (the usual case, O(1) per event);
  *   if any is older, that fixture is recomputed from its full history in the same transaction.
  *   Either way the stored state equals a rebuild that folds the history in (occurredAt, id) order.
- * - Flags. In the incremental case flags are evaluated after every new event, so each flag
- *   records the very event that raised or cleared it (a flag may open and close inside one batch;
- *   both are kept as history). After a recompute they are evaluated once, and changes are
- *   attributed to the latest new event of that fixture. `now` (the receive time) is the clock
- *   for calendar rules and for raisedAt / clearedAt.
+ * - Flags. Evaluated once per fixture per batch, on the state after the batch (evaluation is the
+ *   costly part of ingest; doing it per event made large batches several times slower). A flag
+ *   that appears or disappears is attributed to the event after which it first did so, found by
+ *   bisection over the states after each new event; after a recompute, to the fixture's latest
+ *   new event. A flag that opened and closed again inside one batch leaves no row. `now` (the
+ *   receive time) is the clock for calendar rules and for raisedAt / clearedAt.
  * - Concurrency. The transaction runs at READ COMMITTED and locks the touched fixture_state rows
  *   (FOR UPDATE, in fixture id order, so two batches cannot deadlock on them). Two phones sending
  *   the same new id at once: the second waits on the fixture lock, or hits the primary key; the
@@ -468,7 +469,6 @@ interface OpenFlag {
 	raisedByEventId: string | null;
 	clearedAt: Date | null;
 	clearedByEventId: string | null;
-	changed: boolean;
 }
 
 async function storeAndFold(
@@ -538,59 +538,66 @@ async function storeAndFold(
 				: null;
 		row.recompute = last !== null && compareEvents(events[0], last) <= 0;
 
-		const open = new Map<Flag['kind'], OpenFlag>();
-		for (const f of openFlags.get(id) ?? []) open.set(f.kind, f);
-		const settle = (flags: Flag[], eventId: string) => {
-			const seen = new Set<Flag['kind']>();
-			for (const flag of flags) {
-				seen.add(flag.kind);
-				const o = open.get(flag.kind);
-				if (!o) {
-					const raised: OpenFlag = {
-						id: null,
-						fixtureId: id,
-						kind: flag.kind,
-						reason: flag.reason,
-						figures: flag.figures,
-						raisedAt: now,
-						raisedByEventId: eventId,
-						clearedAt: null,
-						clearedByEventId: null,
-						changed: true
-					};
-					open.set(flag.kind, raised);
-					flagWrites.push(raised);
-				} else if (
-					o.reason !== flag.reason ||
-					canonicalJson(o.figures) !== canonicalJson(flag.figures)
-				) {
-					o.reason = flag.reason;
-					o.figures = flag.figures;
-					if (!o.changed) flagWrites.push(o);
-					o.changed = true;
-				}
-			}
-			for (const [kind, o] of open) {
-				if (seen.has(kind)) continue;
-				o.clearedAt = now;
-				o.clearedByEventId = eventId;
-				if (!o.changed) flagWrites.push(o);
-				o.changed = true;
-				open.delete(kind);
-			}
-		};
-
+		// The state after each new event (incremental case), to find which event changed a flag.
+		let trail: FixtureState[] | null = null;
 		if (row.recompute) {
 			const history = await loadHistory(conn, id);
 			row.state = recompute(history, policy, initialStateOptions(row.fixture));
-			settle(evaluateFlags(row.state, policy, now), events.at(-1)!.id);
 		} else {
-			let state = current;
-			for (const ev of events) {
-				state = applyEvent(state, ev, policy);
-				settle(evaluateFlags(state, policy, now), ev.id);
+			trail = [current];
+			for (const ev of events) trail.push(applyEvent(trail[trail.length - 1], ev, policy));
+			row.state = trail[trail.length - 1];
+		}
+
+		const final = evaluateFlags(row.state, policy, now);
+		const kindsAfter = new Map<number, Set<Flag['kind']>>();
+		const kindsAt = (k: number) => {
+			let kinds = kindsAfter.get(k);
+			if (!kinds) {
+				kinds = new Set(evaluateFlags(trail![k], policy, now).map((f) => f.kind));
+				kindsAfter.set(k, kinds);
 			}
-			row.state = state;
+			return kinds;
+		};
+		/** The new event after which `kind` was first present (or absent), by bisection. */
+		const culprit = (kind: Flag['kind'], present: boolean): string => {
+			if (!trail) return events[events.length - 1].id;
+			let lo = 1;
+			let hi = events.length;
+			while (lo < hi) {
+				const mid = (lo + hi) >> 1;
+				if (kindsAt(mid).has(kind) === present) hi = mid;
+				else lo = mid + 1;
+			}
+			return events[lo - 1].id;
+		};
+
+		const open = new Map<Flag['kind'], OpenFlag>();
+		for (const f of openFlags.get(id) ?? []) open.set(f.kind, f);
+		for (const flag of final) {
+			const o = open.get(flag.kind);
+			if (!o) {
+				flagWrites.push({
+					id: null,
+					fixtureId: id,
+					kind: flag.kind,
+					reason: flag.reason,
+					figures: flag.figures,
+					raisedAt: now,
+					raisedByEventId: culprit(flag.kind, true),
+					clearedAt: null,
+					clearedByEventId: null
+				});
+			} else if (
+				o.reason !== flag.reason ||
+				canonicalJson(o.figures) !== canonicalJson(flag.figures)
+			) {
+				flagWrites.push({ ...o, reason: flag.reason, figures: flag.figures });
+			}
+			open.delete(flag.kind);
+		}
+		for (const o of open.values()) {
+			flagWrites.push({ ...o, clearedAt: now, clearedByEventId: culprit(o.kind, false) });
 		}
 	}
 
@@ -650,8 +657,7 @@ async function loadOpenFlags(
 			raisedAt: r.raised_at,
 			raisedByEventId: r.raised_by_event_id,
 			clearedAt: null,
-			clearedByEventId: null,
-			changed: false
+			clearedByEventId: null
 		};
 		map.set(flag.fixtureId, [...(map.get(flag.fixtureId) ?? []), flag]);
 	}

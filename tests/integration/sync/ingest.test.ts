@@ -336,6 +336,21 @@ describe('ingestBatch', () => {
 		expect(stillOpen.filter((x) => x.kind === 'cleaning-due' && !x.clearedAt)).toHaveLength(0);
 	});
 
+	it('attributes a flag raised inside a batch to the event that tipped it over', async () => {
+		const f = await makeFixture();
+		const interval = DEFAULT_POLICY.cleaningIntervalCycles!;
+		const batch = [
+			reseat(f.code, ago(6), { cycles: interval - 2 }),
+			reseat(f.code, ago(5)),
+			reseat(f.code, ago(4)),
+			reseat(f.code, ago(3))
+		];
+		await ingestBatch(tech, 'phone-1', batch);
+		const rows = await db.select().from(schema.flags).where(eq(schema.flags.fixtureId, f.id));
+		expect(rows.find((x) => x.kind === 'cleaning-due')?.raisedByEventId).toBe(batch[2].id);
+		expect(rows.find((x) => x.kind === 'break-in-due')?.raisedByEventId).toBe(batch[0].id);
+	});
+
 	it('keeps the register status in step with holds and releases', async () => {
 		const f = await makeFixture({ status: 'in-service' });
 		await ingestBatch(tech, 'phone-1', [
