@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { checkCharacter } from '$lib/domain/fixture-code';
 import {
 	CSV_COLUMNS,
+	MAX_IMPORT_BYTES,
 	MAX_IMPORT_ROWS,
 	parseFixtureCsv,
 	toFixtureCsv,
@@ -128,6 +129,14 @@ describe('parseFixtureCsv', () => {
 		expect(parseFixtureCsv('name,type,site,area,location\n').fileErrors).toEqual([
 			'The file has a header line but no fixtures.'
 		]);
+	});
+
+	it('limits the size of one import, counting bytes rather than characters', () => {
+		const notes = 'µ'.repeat((MAX_IMPORT_BYTES - 100) / 2); // two bytes each in UTF-8
+		const ok = parseFixtureCsv(`name,type,site,area,location,notes\nA,other,S,A,L,${notes}\n`);
+		expect(ok.fileErrors).toEqual([]);
+		const big = parseFixtureCsv(`name,type,site,area,location,notes\nA,other,S,A,L,${notes}µµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµ\n`);
+		expect(big.fileErrors[0]).toMatch(/larger than 400 KB/);
 	});
 
 	it('limits the number of rows in one import', () => {
