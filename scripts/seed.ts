@@ -148,14 +148,20 @@ async function seedFixtures(admin: Actor, locationIds: Map<string, number>) {
 	return { added, total: DEMO_FIXTURES.length };
 }
 
-async function main() {
+/** Seeds whatever of the demo scenario is missing; returns what was added. */
+export async function seedDemo() {
 	const users = await seedUsers();
 	const policies = await ensureTypePolicies(users.admin);
 	const locationIds = await seedPlaces(users.admin);
 	const fx = await seedFixtures(users.admin, locationIds);
+	return { users, policies, locations: locationIds.size, fixtures: fx };
+}
+
+async function main() {
+	const r = await seedDemo();
 	console.log(
-		`seed: ${users.added} of ${users.total} demo accounts added, ${policies} type policies added, ` +
-			`${locationIds.size} locations present, ${fx.added} of ${fx.total} demo fixtures added`
+		`seed: ${r.users.added} of ${r.users.total} demo accounts added, ${r.policies} type policies added, ` +
+			`${r.locations} locations present, ${r.fixtures.added} of ${r.fixtures.total} demo fixtures added`
 	);
 }
 
