@@ -385,9 +385,12 @@ function refusal(item: Item, actor: Actor, now: Date): string | undefined {
 	return undefined;
 }
 
+/** MariaDB: duplicate entry for a unique key. */
+const ER_DUP_ENTRY = 1062;
+
 const CLASH = 'An event with this id already exists with different content; it was not changed.';
 
-/** The transaction: judge against stored ids, insert, fold, flag, upsert. */
+/** The transaction: judge, insert, fold, flag, upsert. */
 async function writeBatch(
 	conn: PoolConnection,
 	actor: Actor,
@@ -400,32 +403,30 @@ async function writeBatch(
 	await conn.beginTransaction();
 	try {
 		const firsts = items.filter((i) => i.event && !i.repeatOf);
-		const stored = new Map<string, string>();
-		if (firsts.length) {
-			const [rows] = await conn.query<RowDataPacket[]>(
-				'SELECT id, content_hash FROM events WHERE id IN (?)',
-				[firsts.map((i) => i.id)]
-			);
-			for (const r of rows) stored.set(String(r.id).toLowerCase(), r.content_hash);
+		const candidates: Item[] = [];
+		const refused: { item: Item; why: string }[] = [];
+		for (const item of firsts) {
+			const why = refusal(item, actor, now);
+			if (why) refused.push({ item, why });
+			else candidates.push(item);
 		}
 
-		const fresh: Item[] = [];
-		for (const item of firsts) {
-			const hash = stored.get(item.id);
-			if (hash !== undefined) {
-				item.result =
-					hash === item.hash
-						? { id: item.sentId, status: 'duplicate' }
-						: { id: item.sentId, status: 'rejected', error: CLASH };
-				continue;
-			}
-			const why = refusal(item, actor, now);
-			if (why) item.result = { id: item.sentId, status: 'rejected', error: why };
-			else {
-				item.result = { id: item.sentId, status: 'accepted' };
-				fresh.push(item);
-			}
+		// A refused event may still be one stored earlier (re-sent after another person signed in
+		// on the phone, or after its fixture was renamed): then it is a duplicate, not a refusal.
+		const storedRefused = await storedHashes(
+			conn,
+			refused.map((r) => r.item)
+		);
+		for (const { item, why } of refused) {
+			item.result = judgeStored(item, storedRefused) ?? {
+				id: item.sentId,
+				status: 'rejected',
+				error: why
+			};
 		}
+
+		if (candidates.length) await storeAndFold(conn, actor, deviceId, candidates, policies, now);
+
 		for (const item of items) {
 			const first = item.repeatOf;
 			if (!first) continue;
@@ -442,13 +443,86 @@ async function writeBatch(
 					: { id: item.sentId, status: 'rejected', error: CLASH };
 			}
 		}
-
-		if (fresh.length) await storeAndFold(conn, actor, deviceId, fresh, policies, now);
 		await conn.commit();
 	} catch (err) {
 		await conn.rollback().catch(() => undefined);
 		throw err;
 	}
+}
+
+/** Content hashes of those of `items` already stored, by (lower-case) id. */
+async function storedHashes(conn: PoolConnection, items: Item[]): Promise<Map<string, string>> {
+	const stored = new Map<string, string>();
+	if (!items.length) return stored;
+	const [rows] = await conn.query<RowDataPacket[]>(
+		'SELECT id, content_hash FROM events WHERE id IN (?)',
+		[items.map((i) => i.id)]
+	);
+	for (const r of rows) stored.set(String(r.id).toLowerCase(), r.content_hash);
+	return stored;
+}
+
+/** Duplicate or clash when the id is stored; undefined when it is not. */
+function judgeStored(item: Item, stored: Map<string, string>): SyncResult | undefined {
+	const hash = stored.get(item.id);
+	if (hash === undefined) return undefined;
+	return hash === item.hash
+		? { id: item.sentId, status: 'duplicate' }
+		: { id: item.sentId, status: 'rejected', error: CLASH };
+}
+
+const INSERT_EVENTS = `INSERT INTO events
+	(id, fixture_id, kind, occurred_at, received_at, user_id, device_id, payload, content_hash)
+	VALUES ?`;
+
+/**
+ * Inserts the candidates and returns those that were new. Optimistic: most batches are sent
+ * once, so they are inserted straight away; only when the primary key says some id is already
+ * there (a retry, or another phone's batch that just committed) are the stored ids looked up and
+ * the rest inserted. A failed statement is undone on its own; the transaction goes on.
+ */
+async function insertNew(
+	conn: PoolConnection,
+	actor: Actor,
+	deviceId: string,
+	candidates: Item[],
+	now: Date
+): Promise<Item[]> {
+	const rows = (list: Item[]) =>
+		list.map((item) => {
+			const e = item.event!;
+			return [
+				e.id,
+				item.fixture!.id,
+				e.kind,
+				new Date(e.occurredAt),
+				now,
+				actor.id,
+				deviceId,
+				JSON.stringify(e.payload),
+				item.hash
+			];
+		});
+	try {
+		await conn.query(INSERT_EVENTS, [rows(candidates)]);
+		for (const item of candidates) item.result = { id: item.sentId, status: 'accepted' };
+		return candidates;
+	} catch (err) {
+		if ((err as { errno?: number }).errno !== ER_DUP_ENTRY) throw err;
+	}
+	const stored = await storedHashes(conn, candidates);
+	const fresh: Item[] = [];
+	for (const item of candidates) {
+		const known = judgeStored(item, stored);
+		if (known) item.result = known;
+		else {
+			item.result = { id: item.sentId, status: 'accepted' };
+			fresh.push(item);
+		}
+	}
+	// Another duplicate here means a third batch raced this one: the whole batch is retried.
+	if (fresh.length) await conn.query(INSERT_EVENTS, [rows(fresh)]);
+	return fresh;
 }
 
 interface StateRow {
@@ -475,62 +549,44 @@ async function storeAndFold(
 	conn: PoolConnection,
 	actor: Actor,
 	deviceId: string,
-	fresh: Item[],
+	candidates: Item[],
 	policies: Map<number, Policy>,
 	now: Date
 ): Promise<void> {
+	const lockIds = [...new Set(candidates.map((i) => i.fixture!.id))].sort((a, b) => a - b);
+
+	// Lock the states first, in id order; a fixture without a state row gets one, then the lock.
+	const locked = await lockStates(conn, lockIds);
+	const missing = lockIds.filter((id) => !locked.has(id));
+	if (missing.length) {
+		const fixtureOf = new Map(candidates.map((i) => [i.fixture!.id, i.fixture!]));
+		await conn.query('INSERT IGNORE INTO fixture_state (fixture_id, data, updated_at) VALUES ?', [
+			missing.map((id) => [id, JSON.stringify(initialStateFor(fixtureOf.get(id)!)), now])
+		]);
+		for (const [id, entry] of await lockStates(conn, missing)) locked.set(id, entry);
+	}
+
+	const fresh = await insertNew(conn, actor, deviceId, candidates, now);
+	if (!fresh.length) return;
+
 	const byFixture = new Map<number, StateRow>();
 	for (const item of fresh) {
 		const f = item.fixture!;
 		let row = byFixture.get(f.id);
 		if (!row) {
-			const start = initialStateFor(f);
-			row = { state: start, before: start, recompute: false, newEvents: [], fixture: f };
+			const current = locked.get(f.id)!.state;
+			row = { state: current, before: current, recompute: false, newEvents: [], fixture: f };
 			byFixture.set(f.id, row);
 		}
 		row.newEvents.push(item);
 	}
 	const fixtureIds = [...byFixture.keys()].sort((a, b) => a - b);
-
-	// Lock the states first, in id order; a fixture without a state row gets one, then the lock.
-	const states = await lockStates(conn, fixtureIds);
-	const missing = fixtureIds.filter((id) => !states.has(id));
-	if (missing.length) {
-		await conn.query('INSERT IGNORE INTO fixture_state (fixture_id, data, updated_at) VALUES ?', [
-			missing.map((id) => [id, JSON.stringify(initialStateFor(byFixture.get(id)!.fixture)), now])
-		]);
-		for (const [id, state] of await lockStates(conn, missing)) states.set(id, state);
-	}
-
-	await conn.query(
-		`INSERT INTO events (id, fixture_id, kind, occurred_at, received_at, user_id, device_id, payload, content_hash)
-		 VALUES ?`,
-		[
-			fresh.map((item) => {
-				const e = item.event!;
-				return [
-					e.id,
-					item.fixture!.id,
-					e.kind,
-					new Date(e.occurredAt),
-					now,
-					actor.id,
-					deviceId,
-					JSON.stringify(e.payload),
-					item.hash
-				];
-			})
-		]
-	);
-
-	const openFlags = await loadOpenFlags(conn, fixtureIds);
 	const flagWrites: OpenFlag[] = [];
 
 	for (const id of fixtureIds) {
 		const row = byFixture.get(id)!;
 		const policy = policies.get(id)!;
-		const current = states.get(id)!;
-		row.before = current;
+		const current = row.before;
 		const events = row.newEvents.map((i) => toFixtureEvent(i.event!)).sort(compareEvents);
 		const last =
 			current.lastEventAt && current.lastEventId
@@ -573,7 +629,7 @@ async function storeAndFold(
 		};
 
 		const open = new Map<Flag['kind'], OpenFlag>();
-		for (const f of openFlags.get(id) ?? []) open.set(f.kind, f);
+		for (const f of locked.get(id)!.openFlags) open.set(f.kind, f);
 		for (const flag of final) {
 			const o = open.get(flag.kind);
 			if (!o) {
@@ -610,12 +666,57 @@ function toFixtureEvent(e: SyncEvent): FixtureEvent {
 	return { id: e.id, kind: e.kind, occurredAt: e.occurredAt, payload: e.payload } as FixtureEvent;
 }
 
-async function lockStates(conn: PoolConnection, ids: number[]): Promise<Map<number, FixtureState>> {
+/** A locked state row and the fixture's open flags. */
+interface Locked {
+	state: FixtureState;
+	openFlags: OpenFlag[];
+}
+
+/**
+ * Locks the fixtures' state rows (in id order) and reads them with their open flags, in one
+ * statement: the flags come along as a JSON array per fixture.
+ */
+async function lockStates(conn: PoolConnection, ids: number[]): Promise<Map<number, Locked>> {
 	const [rows] = await conn.query<RowDataPacket[]>(
-		'SELECT fixture_id, data FROM fixture_state WHERE fixture_id IN (?) ORDER BY fixture_id FOR UPDATE',
+		`SELECT s.fixture_id, s.data,
+		   (SELECT JSON_ARRAYAGG(JSON_OBJECT('id', f.id, 'kind', f.kind, 'reason', f.reason,
+		      'figures', JSON_QUERY(COALESCE(f.figures, '{}'), '$'), 'raisedAt', f.raised_at,
+		      'raisedBy', f.raised_by_event_id))
+		      FROM flags f WHERE f.fixture_id = s.fixture_id AND f.cleared_at IS NULL) AS open_flags
+		 FROM fixture_state s WHERE s.fixture_id IN (?) ORDER BY s.fixture_id FOR UPDATE`,
 		[ids]
 	);
-	return new Map(rows.map((r) => [r.fixture_id as number, parseJson<FixtureState>(r.data)!]));
+	const out = new Map<number, Locked>();
+	for (const r of rows) {
+		const fixtureId = r.fixture_id as number;
+		const flags =
+			parseJson<
+				{
+					id: number;
+					kind: Flag['kind'];
+					reason: string;
+					figures: Flag['figures'];
+					raisedAt: string;
+					raisedBy: string | null;
+				}[]
+			>(r.open_flags) ?? [];
+		out.set(fixtureId, {
+			state: parseJson<FixtureState>(r.data)!,
+			openFlags: flags.map((f) => ({
+				id: f.id,
+				fixtureId,
+				kind: f.kind,
+				reason: f.reason,
+				figures: f.figures,
+				// DATETIME text from the database, in UTC.
+				raisedAt: new Date(`${f.raisedAt.replace(' ', 'T')}Z`),
+				raisedByEventId: f.raisedBy,
+				clearedAt: null,
+				clearedByEventId: null
+			}))
+		});
+	}
+	return out;
 }
 
 /** A fixture's whole history in folding order (this transaction's inserts included). */
@@ -635,33 +736,6 @@ async function loadHistory(conn: PoolConnection, fixtureId: number): Promise<Fix
 	);
 	// The database's collation orders ids case-insensitively; the fold order is the domain's.
 	return events.sort(compareEvents);
-}
-
-async function loadOpenFlags(
-	conn: PoolConnection,
-	ids: number[]
-): Promise<Map<number, OpenFlag[]>> {
-	const [rows] = await conn.query<RowDataPacket[]>(
-		`SELECT id, fixture_id, kind, reason, figures, raised_at, raised_by_event_id
-		   FROM flags WHERE fixture_id IN (?) AND cleared_at IS NULL`,
-		[ids]
-	);
-	const map = new Map<number, OpenFlag[]>();
-	for (const r of rows) {
-		const flag: OpenFlag = {
-			id: r.id,
-			fixtureId: r.fixture_id,
-			kind: r.kind,
-			reason: r.reason,
-			figures: parseJson(r.figures) ?? {},
-			raisedAt: r.raised_at,
-			raisedByEventId: r.raised_by_event_id,
-			clearedAt: null,
-			clearedByEventId: null
-		};
-		map.set(flag.fixtureId, [...(map.get(flag.fixtureId) ?? []), flag]);
-	}
-	return map;
 }
 
 const isoToDate = (iso: string | null) => (iso === null ? null : new Date(iso));

@@ -186,6 +186,30 @@ describe('ingestBatch', () => {
 		expect(row.userId).toBe(operator.id);
 	});
 
+	it("answers duplicate for a technician's stored inspection re-sent under an operator", async () => {
+		const f = await makeFixture();
+		const insp = inspection(f.code, ago(2));
+		await ingestBatch(tech, 'phone-6', [insp]);
+		expect(await ingestBatch(operator, 'phone-6', [insp])).toEqual([
+			{ id: insp.id, status: 'duplicate' }
+		]);
+	});
+
+	it('stores the new events of a batch that is partly a re-send', async () => {
+		const f = await makeFixture();
+		const old = [reseat(f.code, ago(5)), reseat(f.code, ago(4))];
+		await ingestBatch(tech, 'phone-1', old);
+		const clash = { ...old[1], payload: { cycles: 9 } };
+		const fresh = [reseat(f.code, ago(3)), cleaning(f.code, ago(2))];
+		const results = await ingestBatch(tech, 'phone-1', [old[0], fresh[0], clash, fresh[1]]);
+		expect(statuses(results)).toEqual(['duplicate', 'accepted', 'rejected', 'accepted']);
+		expect(results[2].error).toMatch(/different content/);
+		expect(await eventCount(f.id)).toBe(4);
+		const row = await stateOf(f.id);
+		expect(row).toMatchObject({ eventCount: 4, totalCycles: 3, cyclesSinceCleaning: 0 });
+		expect(row.data).toEqual(await rebuilt(f));
+	});
+
 	it('treats a fixture code in any spelling as the same content', async () => {
 		const f = await makeFixture();
 		const e = reseat(f.code, ago(1));
