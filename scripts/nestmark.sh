@@ -9,6 +9,7 @@
 #   bash scripts/nestmark.sh db:migrate apply the Drizzle migrations to the dev database
 #   bash scripts/nestmark.sh db:seed    seed the demo scenario into the dev database
 #   bash scripts/nestmark.sh db:reset   drop and recreate the dev database, migrate and seed
+#   bash scripts/nestmark.sh state:rebuild [--fix]  recompute fixture states, report differences
 #
 # Everything it starts it stops again on exit (Ctrl-C included), by PID; a MariaDB that was
 # already running is reused and left running.
@@ -595,6 +596,12 @@ cmd_db_seed() {
 	run_seed
 }
 
+cmd_state_rebuild() {
+	install_traps
+	db_up_if_local
+	tsx scripts/state-rebuild.ts "$@"
+}
+
 cmd_db_reset() {
 	if ! uses_local_db || [[ ! "$DATABASE_URL" =~ /$DEV_DB(\?.*)?$ ]]; then
 		die "db:reset only resets the project's own '$DEV_DB' database, and DATABASE_URL names another"
@@ -609,7 +616,7 @@ cmd_db_reset() {
 }
 
 usage() {
-	sed -n '2,12p' "${BASH_SOURCE[0]}" | sed 's/^# \{0,1\}//'
+	sed -n '2,13p' "${BASH_SOURCE[0]}" | sed 's/^# \{0,1\}//'
 }
 
 main() {
@@ -626,6 +633,11 @@ main() {
 	db:up | db:down | db:migrate | db:seed | db:reset)
 		setup_env dev
 		"cmd_${cmd//:/_}"
+		;;
+	state:rebuild)
+		setup_env dev
+		shift
+		cmd_state_rebuild "$@"
 		;;
 	-h | --help | help) usage ;;
 	*)
