@@ -1,7 +1,9 @@
-import { error, json, redirect, type Handle } from '@sveltejs/kit';
+import { error, json, redirect, type Handle, type ServerInit } from '@sveltejs/kit';
+import { building } from '$app/environment';
 import { sequence } from '@sveltejs/kit/hooks';
 import type { Role } from '$lib/schemas/roles';
 import { authHandle } from '$lib/server/auth';
+import { startDueScan } from '$lib/server/due-scan';
 import { hasRole } from '$lib/server/guard';
 import { loadSessionUser } from '$lib/server/users';
 
@@ -91,3 +93,8 @@ const guard: Handle = async ({ event, resolve }) => {
 };
 
 export const handle: Handle = sequence(requestLog, authHandle, locals, guard);
+
+/** Starts the calendar scan (cleaning and inspection due by days) once per server process. */
+export const init: ServerInit = () => {
+	if (!building) startDueScan();
+};
