@@ -201,10 +201,20 @@ export function geometryInput(f: GeometryForm) {
 		};
 		const omit = f.omitBall ? ((Number(f.omitBall) - 1) as 0 | 1 | 2) : undefined;
 		if (omit !== undefined) params.omitBall = omit + 1;
-		contacts = threeVeeContacts({ ...params, ballDiameter_mm, omitBall: omit });
+		contacts = threeVeeContacts({
+			ballCircleRadius_mm: f.ballCircleRadius_mm!,
+			contactAngle_deg: f.contactAngle_deg!,
+			grooveYaw_deg: f.grooveYaw_deg ?? 0,
+			ballDiameter_mm,
+			omitBall: omit
+		});
 	} else if (f.kind === 'trihedral-vee-flat') {
 		params = { ballCircleRadius_mm: f.ballCircleRadius_mm!, contactAngle_deg: f.contactAngle_deg! };
-		contacts = trihedralVeeFlatContacts({ ...params, ballDiameter_mm });
+		contacts = trihedralVeeFlatContacts({
+			ballCircleRadius_mm: f.ballCircleRadius_mm!,
+			contactAngle_deg: f.contactAngle_deg!,
+			ballDiameter_mm
+		});
 	} else {
 		params = {};
 		contacts = (f.rows ?? []).map((r, i) => ({
