@@ -23,7 +23,17 @@ export async function readJsonBody(request: Request, limit: number): Promise<unk
 	const chunks: Uint8Array[] = [];
 	let received = 0;
 	for (;;) {
-		const { done, value } = await reader.read();
+		let chunk: ReadableStreamReadResult<Uint8Array>;
+		try {
+			chunk = await reader.read();
+		} catch (err) {
+			// The platform's own limit (adapter-node's BODY_SIZE_LIMIT) or a dropped connection.
+			const status = (err as { status?: number }).status;
+			if (status === 413)
+				throw new BodyError('The request body is larger than the server accepts.');
+			throw new BodyError('The request body could not be read to the end.');
+		}
+		const { done, value } = chunk;
 		if (done) break;
 		received += value.byteLength;
 		if (received > limit) {

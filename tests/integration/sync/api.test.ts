@@ -151,6 +151,25 @@ describe('POST /api/sync', () => {
 		);
 		expect(streamed.status).toBe(400);
 		expect((await streamed.json()).error).toMatch(/larger than the limit/);
+
+		// The adapter's own limit (BODY_SIZE_LIMIT) ends the stream with a 413 error: still 400 JSON.
+		const cut = new ReadableStream<Uint8Array>({
+			start(controller) {
+				controller.enqueue(bytes.slice(0, 1024));
+				controller.error(Object.assign(new Error('Payload Too Large'), { status: 413 }));
+			}
+		});
+		const limited = await call(
+			postSync,
+			tech,
+			new Request('http://127.0.0.1/api/sync', {
+				method: 'POST',
+				body: cut,
+				duplex: 'half'
+			} as RequestInit)
+		);
+		expect(limited.status).toBe(400);
+		expect((await limited.json()).error).toMatch(/larger than the server accepts/);
 	});
 });
 
