@@ -135,7 +135,9 @@ describe('parseFixtureCsv', () => {
 		const notes = 'µ'.repeat((MAX_IMPORT_BYTES - 100) / 2); // two bytes each in UTF-8
 		const ok = parseFixtureCsv(`name,type,site,area,location,notes\nA,other,S,A,L,${notes}\n`);
 		expect(ok.fileErrors).toEqual([]);
-		const big = parseFixtureCsv(`name,type,site,area,location,notes\nA,other,S,A,L,${notes}µµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµ\n`);
+		const big = parseFixtureCsv(
+			`name,type,site,area,location,notes\nA,other,S,A,L,${notes}µµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµµ\n`
+		);
 		expect(big.fileErrors[0]).toMatch(/larger than 400 KB/);
 	});
 
