@@ -2,7 +2,7 @@ import { error, json, redirect, type Handle, type ServerInit } from '@sveltejs/k
 import { building } from '$app/environment';
 import { sequence } from '@sveltejs/kit/hooks';
 import type { Role } from '$lib/schemas/roles';
-import { authHandle } from '$lib/server/auth';
+import { authHandle, type SessionWithStart } from '$lib/server/auth';
 import { startDueScan } from '$lib/server/due-scan';
 import { hasRole } from '$lib/server/guard';
 import { loadSessionUser } from '$lib/server/users';
@@ -45,9 +45,9 @@ const locals: Handle = async ({ event, resolve }) => {
 	event.cookies.set = (name, value, opts) =>
 		set(name, value, { ...opts, secure: opts.secure ?? secure });
 
-	const session = await event.locals.auth();
+	const session: SessionWithStart | null = await event.locals.auth();
 	const id = session?.user?.id;
-	event.locals.user = id ? await loadSessionUser(id) : null;
+	event.locals.user = id ? await loadSessionUser(id, session?.signedInAt) : null;
 	return resolve(event);
 };
 

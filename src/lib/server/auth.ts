@@ -1,4 +1,9 @@
-import { CredentialsSignin, SvelteKitAuth, type SvelteKitAuthConfig } from '@auth/sveltekit';
+import {
+	CredentialsSignin,
+	SvelteKitAuth,
+	type Session,
+	type SvelteKitAuthConfig
+} from '@auth/sveltekit';
 import { DrizzleAdapter } from '@auth/drizzle-adapter';
 import Credentials from '@auth/sveltekit/providers/credentials';
 import Nodemailer from '@auth/sveltekit/providers/nodemailer';
@@ -24,6 +29,9 @@ class SignInRefused extends CredentialsSignin {
 		this.code = code;
 	}
 }
+
+/** The session as the handle reads it: Auth.js's, plus when it began (ms). */
+export type SessionWithStart = Session & { signedInAt?: number };
 
 /** Errors that are expected answers to people, not faults worth a stack trace in the log. */
 const QUIET_ERRORS = new Set(['CredentialsSignin', 'AccessDenied', 'Verification']);
@@ -116,6 +124,9 @@ function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 			},
 			jwt({ token, user }) {
 				if (user) {
+					// Kept through every refresh of the token (unlike iat), so the handle can refuse
+					// sessions that began before a deactivation.
+					token.signedInAt = Date.now();
 					token.sub = user.id;
 					token.email = user.email;
 					// People who only ever signed in by link may have no name.
@@ -125,6 +136,9 @@ function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 			},
 			session({ session, token }) {
 				if (token.sub) session.user.id = token.sub;
+				if (typeof token.signedInAt === 'number') {
+					(session as SessionWithStart).signedInAt = token.signedInAt;
+				}
 				session.user.email = token.email ?? session.user.email;
 				session.user.name = token.name || token.email || session.user.name;
 				return session;

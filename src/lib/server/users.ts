@@ -36,6 +36,7 @@ export interface UserSummary {
 	invitedAt: Date | null;
 	/** Invited, and has not yet followed a sign-in link. */
 	invitationPending: boolean;
+	/** When last deactivated (kept after reactivation). */
 	deactivatedAt: Date | null;
 	createdAt: Date;
 }
@@ -98,15 +99,23 @@ export async function isActiveEmail(email: string): Promise<boolean> {
 
 /**
  * The signed-in person for this request, read fresh from the database so that deactivation and
- * role changes take effect at once; null when unknown or deactivated.
+ * role changes take effect at once; null when unknown or deactivated. `signedInAt` (ms) is when
+ * the session began: a session from before the last deactivation stays dead after reactivation.
  */
-export async function loadSessionUser(id: string): Promise<Actor | null> {
+export async function loadSessionUser(id: string, signedInAt?: number): Promise<Actor | null> {
 	const [row] = await db
-		.select({ id: users.id, email: users.email, name: users.name, active: users.active })
+		.select({
+			id: users.id,
+			email: users.email,
+			name: users.name,
+			active: users.active,
+			deactivatedAt: users.deactivatedAt
+		})
 		.from(users)
 		.where(eq(users.id, id))
 		.limit(1);
 	if (!row?.active || !row.email) return null;
+	if (row.deactivatedAt && !(signedInAt && signedInAt > row.deactivatedAt.getTime())) return null;
 	const roles = (await rolesOf([row.id])).get(row.id) ?? [];
 	return { id: row.id, email: row.email, name: row.name || row.email, roles };
 }
@@ -354,11 +363,14 @@ export async function deactivate(userId: string, actor: Actor): Promise<void> {
 	});
 }
 
-/** Lets a deactivated person sign in again, with the roles they had. */
+/**
+ * Lets a deactivated person sign in again, with the roles they had. They sign in afresh:
+ * deactivatedAt is kept as "last deactivated", which keeps older sessions dead.
+ */
 export async function reactivate(userId: string, actor: Actor): Promise<void> {
 	assertRole(actor, ['admin'], 'reactivate people');
 	await db.transaction(async (tx) => {
 		await requireUserRow(tx, userId);
-		await tx.update(users).set({ active: true, deactivatedAt: null }).where(eq(users.id, userId));
+		await tx.update(users).set({ active: true }).where(eq(users.id, userId));
 	});
 }

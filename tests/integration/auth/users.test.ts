@@ -155,8 +155,12 @@ describe('deactivate and reactivate', () => {
 		const admin = await makeUser({ roles: ['admin'] });
 		const p = await makeUser({ roles: ['supervisor'], name: 'Ines Brandt' });
 		const fixture = await makeFixture({ createdBy: p.id });
+		const before = Date.now();
+		expect(await people.loadSessionUser(p.id, before)).not.toBeNull();
+		// Never deactivated: a session without a start time (an older token) is fine.
 		expect(await people.loadSessionUser(p.id)).not.toBeNull();
 
+		await new Promise((r) => setTimeout(r, 5));
 		await people.deactivate(p.id, admin);
 		expect(await people.loadSessionUser(p.id)).toBeNull();
 		const summary = await people.getUser(p.id);
@@ -166,8 +170,11 @@ describe('deactivate and reactivate', () => {
 		expect(f.createdBy).toBe(p.id);
 
 		await people.reactivate(p.id, admin);
-		expect((await people.loadSessionUser(p.id))?.roles).toEqual(['supervisor']);
-		expect((await people.getUser(p.id))?.deactivatedAt).toBeNull();
+		expect((await people.getUser(p.id))?.active).toBe(true);
+		// A session from before the deactivation stays dead; a new sign-in works.
+		expect(await people.loadSessionUser(p.id, before)).toBeNull();
+		expect(await people.loadSessionUser(p.id)).toBeNull();
+		expect((await people.loadSessionUser(p.id, Date.now() + 1))?.roles).toEqual(['supervisor']);
 	});
 
 	it('refuses deactivating yourself, and non-admins', async () => {
