@@ -1,0 +1,97 @@
+/**
+ * Nestmark's computation core: pure functions, no I/O. Units: geometry in mm, loads in N, moduli in
+ * GPa, stresses in MPa, readings and repeatability in µm, stiffness in N/µm.
+ */
+export { DomainInputError } from './errors';
+export type { Vec3 } from './vec';
+export {
+	analyzeConstraints,
+	permitsTwist,
+	twistVectors,
+	type Contact,
+	type Twist,
+	type ConstraintAnalysis,
+	type ConstraintOptions
+} from './constraints';
+export {
+	threeVeeContacts,
+	trihedralVeeFlatContacts,
+	type ThreeVeeDesign,
+	type TrihedralVeeFlatDesign
+} from './coupling-geometry';
+export {
+	hertzBallOnFlat,
+	hertzBallOnBall,
+	hertzBallInSeat,
+	hertzBallInVee,
+	hertzBallInGroove,
+	allowableLoad,
+	effectiveModulus,
+	MATERIALS,
+	MATERIAL_SOURCES,
+	ISO76_BALL_LIMIT_MPA,
+	type Material,
+	type HertzContact
+} from './hertz';
+export { circularMaxShear, ellipticalMaxShear } from './subsurface';
+export {
+	repeatability,
+	meanAndS,
+	type Reading,
+	type AxisRepeatability,
+	type RepeatabilityResult
+} from './repeatability';
+export { breakInStatus, type BreakInRule, type BreakInResult } from './break-in';
+export {
+	individualsChart,
+	runRuleHits,
+	ALL_RULES,
+	RULE_TEXT,
+	RULE_LENGTH,
+	D2,
+	D4,
+	type RunRule,
+	type RuleHit,
+	type ChartLimits,
+	type ChartOptions,
+	type IndividualsChart
+} from './spc';
+export { forecastCrossing, median, type Forecast, type ForecastOptions } from './forecast';
+export {
+	DEFAULT_POLICY,
+	POLICY_SOURCES,
+	assertPolicy,
+	type Policy,
+	type PolicySource
+} from './policy';
+export {
+	emptyState,
+	initialState,
+	cloneState,
+	applyEvent,
+	foldEvents,
+	recompute,
+	evaluateFlags,
+	isOutOfOrder,
+	compareEvents,
+	recentRepeatability,
+	fixtureForecast,
+	SPC_BASELINE_POINTS,
+	SPC_TAIL,
+	DRIFT_RULES,
+	DRIFT_MEMORY,
+	BREAK_IN_MAX_WINDOWS,
+	TREND_MAX_WINDOWS,
+	FORECAST_MIN_WINDOWS,
+	type FixtureState,
+	type FixtureStatus,
+	type BreakInReason,
+	type BreakInProgress,
+	type StoredReading,
+	type WindowPoint,
+	type AxisSpc,
+	type Flag,
+	type FlagKind,
+	type InitialStateOptions
+} from './health';
+export type { FixtureEvent } from '../schemas/events';
