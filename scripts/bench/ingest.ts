@@ -336,6 +336,16 @@ function request(
 	});
 }
 
+/** Whether something already answers HTTP on the bench port. */
+async function answers(): Promise<boolean> {
+	try {
+		await request('GET', '/', {});
+		return true;
+	} catch {
+		return false;
+	}
+}
+
 async function waitForServer(child: ChildProcess): Promise<void> {
 	for (let i = 0; i < 300; i++) {
 		if (child.exitCode !== null) throw new Error('the app exited during start-up');
@@ -431,6 +441,9 @@ export async function benchIngest(): Promise<{ apiRate: number; rawRate: number;
 			`raw INSERT IGNORE:  ${fmt(rawRate)} events/s (${(raw.ms / 1000).toFixed(1)} s, ${fmt(raw.stored)} rows; CPU per 100 events: ${raw.cpu})`
 		);
 
+		if (await answers()) {
+			throw new Error(`port ${PORT} is already in use; set BENCH_PORT to a free port`);
+		}
 		server = startServer(url);
 		await waitForServer(server);
 		const cookie = await signIn();
