@@ -50,7 +50,7 @@ interface Range {
 
 /** A required number field with messages that say what to enter. */
 function num({ label, unit, min, gt, max, lt }: Range) {
-	const u = unit ? ` ${unit}` : '';
+	const u = unit === '°' ? '°' : unit ? ` ${unit}` : '';
 	let n = z.number({
 		error: (iss) =>
 			iss.input === undefined
