@@ -5,10 +5,12 @@
  */
 import { benchDomain } from './bench/domain';
 import { benchIngest } from './bench/ingest';
+import { benchScanBundle } from './bench/scan-bundle';
 
 const SECTIONS: { name: string; run: () => Promise<unknown> }[] = [
 	{ name: 'domain', run: benchDomain },
-	{ name: 'ingest', run: benchIngest }
+	{ name: 'ingest', run: benchIngest },
+	{ name: 'scan-bundle', run: benchScanBundle }
 ];
 
 const wanted = process.argv.slice(2);
