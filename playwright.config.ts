@@ -21,6 +21,8 @@ function authSecret(): string {
 
 const testEnv: Record<string, string> = {
 	NESTMARK_ENV: 'test',
+	// As in scripts/nestmark.sh: the sync API enforces its own 2 MB limit.
+	BODY_SIZE_LIMIT: '3M',
 	HOST: '127.0.0.1',
 	PORT: String(port),
 	ORIGIN: origin,

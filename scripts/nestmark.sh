@@ -101,6 +101,9 @@ setup_env() {
 	export HOST="${HOST:-127.0.0.1}"
 	export SMTP_HOST="${SMTP_HOST:-127.0.0.1}"
 	export MAIL_FROM="${MAIL_FROM:-Nestmark <nestmark@localhost>}"
+	# adapter-node's default body limit (512K) is below the sync API's own 2 MB limit; let the API
+	# decide, so an oversize batch gets its clear JSON 400.
+	export BODY_SIZE_LIMIT="${BODY_SIZE_LIMIT:-3M}"
 
 	if [[ "$mode" == test ]]; then
 		# Tests never take DATABASE_URL, ports or folders from .env: the test database is dropped
