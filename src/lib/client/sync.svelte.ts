@@ -69,7 +69,9 @@ export class SyncEngine {
 		window.addEventListener('offline', offline);
 		document.addEventListener('visibilitychange', visible);
 		void getMeta('lastSyncAt').then((v) => (this.lastSyncAt ??= v ?? null));
-		void this.#refreshCounts().then(() => this.run());
+		// The first pass waits for a quiet moment, so it does not slow the page's first tap.
+		const idle = window.requestIdleCallback ?? ((f: () => void) => setTimeout(f, 1_000));
+		void this.#refreshCounts().then(() => idle(() => void this.run(), { timeout: 2_000 }));
 		this.#stop = () => {
 			clearTimeout(this.#timer);
 			unsubscribe();
