@@ -116,6 +116,16 @@ function startServer(url: string): ChildProcess {
 	});
 }
 
+/** Stops the app: SIGTERM, and SIGKILL if it is still draining connections after 5 s. */
+async function stopServer(child: ChildProcess): Promise<void> {
+	if (child.exitCode !== null) return;
+	const exited = new Promise((r) => child.once('exit', r));
+	child.kill('SIGTERM');
+	const timer = setTimeout(() => child.kill('SIGKILL'), 5_000);
+	await exited;
+	clearTimeout(timer);
+}
+
 async function waitForServer(): Promise<void> {
 	for (let i = 0; i < 200; i++) {
 		try {
@@ -128,32 +138,41 @@ async function waitForServer(): Promise<void> {
 	throw new Error('the built app did not start');
 }
 
+interface Run {
+	/** Decode to entry shown, including the card opening and the (automated) tap. */
+	total: number;
+	/** The app's own share: decode → card shown, plus tap → entry shown. */
+	app: number;
+	tapToWaiting: number;
+}
+
 /** One measured scan: type the code on /scan, tap Reseat on the card, read the marks. */
-async function measureOnce(
-	page: Page,
-	code: string
-): Promise<{ total: number; tapToWaiting: number }> {
+async function measureOnce(page: Page, code: string): Promise<Run> {
 	await page.goto('/scan');
-	await page.evaluate(() => performance.clearMarks());
+	// Each tap's time, taken in the page as it happens; the last one (Reseat) counts. The
+	// document outlives the client-side navigation to the card.
+	await page.evaluate(() => {
+		performance.clearMarks();
+		document.addEventListener('pointerdown', () => performance.mark('bench:tap'), {
+			capture: true
+		});
+	});
 	await page.getByLabel('Type the code').fill(code);
 	await page.getByRole('button', { name: 'Open', exact: true }).click();
-	const reseat = page.getByRole('button', { name: 'Reseat', exact: true });
-	await reseat.waitFor();
-	// The tap's own time, taken in the page as it happens.
-	await page.evaluate(() =>
-		document.addEventListener('pointerdown', () => performance.mark('bench:tap'), {
-			capture: true,
-			once: true
-		})
-	);
-	await reseat.click();
+	await page.getByRole('button', { name: 'Reseat', exact: true }).click();
 	await page.getByText('Waiting to sync', { exact: true }).first().waitFor();
 	await page.waitForFunction(() => performance.getEntriesByName('nm:entry-waiting').length > 0);
+	// No named functions inside evaluate(): tsx would wrap them in a helper the page lacks.
 	return page.evaluate(() => {
-		const at = (name: string) => performance.getEntriesByName(name, 'mark')[0].startTime;
+		// Later marks of the same name win: the Reseat tap over the Open tap.
+		const marks = Object.fromEntries(
+			performance.getEntriesByType('mark').map((m) => [m.name, m.startTime])
+		);
+		const tapToWaiting = marks['nm:entry-waiting'] - marks['bench:tap'];
 		return {
-			total: at('nm:entry-waiting') - at('nm:scan-decoded'),
-			tapToWaiting: at('nm:entry-waiting') - at('bench:tap')
+			total: marks['nm:entry-waiting'] - marks['nm:scan-decoded'],
+			app: marks['nm:card-shown'] - marks['nm:scan-decoded'] + tapToWaiting,
+			tapToWaiting
 		};
 	});
 }
@@ -221,35 +240,36 @@ export async function benchScanToWaiting(): Promise<{ onlineMs: number; offlineM
 		});
 		await page.reload();
 
-		const results: Record<'online' | 'offline', { total: number[]; tap: number[] }> = {
-			online: { total: [], tap: [] },
-			offline: { total: [], tap: [] }
-		};
+		const results: Record<'online' | 'offline', Run[]> = { online: [], offline: [] };
 		// One warm-up scan per mode (first chunk loads), not counted.
 		for (const mode of ['online', 'offline'] as const) {
 			await context.setOffline(mode === 'offline');
 			for (let i = 0; i <= RUNS; i++) {
 				const r = await measureOnce(page, codes[i % codes.length]);
-				if (i === 0) continue;
-				results[mode].total.push(r.total);
-				results[mode].tap.push(r.tapToWaiting);
+				if (i > 0) results[mode].push(r);
 			}
 		}
 		await context.setOffline(false);
 		const base = await baseline(page);
 
 		for (const mode of ['online', 'offline'] as const) {
-			const m = median(results[mode].total);
+			const runs = results[mode];
+			const app = median(runs.map((r) => r.app));
 			log(
-				`${mode.padEnd(7)} median ${m.toFixed(0)} ms, p95 ${p95(results[mode].total).toFixed(0)} ms (tap → shown ${median(results[mode].tap).toFixed(0)} ms); goal < ${GOAL_MS} ms: ${m < GOAL_MS ? 'met' : 'NOT met'}`
+				`${mode.padEnd(7)} app ${app.toFixed(0)} ms median, p95 ${p95(runs.map((r) => r.app)).toFixed(0)} ms (of which tap → shown ${median(runs.map((r) => r.tapToWaiting)).toFixed(0)} ms); goal < ${GOAL_MS} ms: ${app < GOAL_MS ? 'met' : 'NOT met'}`
+			);
+			log(
+				`        with the automated tap: ${median(runs.map((r) => r.total)).toFixed(0)} ms median`
 			);
 		}
 		log(`baseline: IndexedDB write + painted DOM update ${base.toFixed(1)} ms (same browser)`);
-		log('(decode → tap includes the card opening and the automated tap itself)');
-		return { onlineMs: median(results.online.total), offlineMs: median(results.offline.total) };
+		return {
+			onlineMs: median(results.online.map((r) => r.app)),
+			offlineMs: median(results.offline.map((r) => r.app))
+		};
 	} finally {
 		await browser.close();
-		server.kill('SIGTERM');
+		await stopServer(server);
 		if (process.env.BENCH_KEEP_DB !== '1') adminSql(`DROP DATABASE IF EXISTS \`${DB}\``);
 	}
 }

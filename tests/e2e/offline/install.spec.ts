@@ -40,7 +40,7 @@ test('the scanner and a fixture card open again after an offline reload', async 
 	context
 }) => {
 	// Installing the service worker (about 1 MB of precache) is slow on a busy machine.
-	test.setTimeout(90_000);
+	test.setTimeout(180_000);
 	const code = await createFixture('Install test fixture plate', { type: 'plate' });
 	await signInAs(page, 'operator');
 	await expect(page.locator('link[rel="manifest"]')).toHaveAttribute(
@@ -69,7 +69,7 @@ test('a card never opened on this device still opens offline from the register c
 	context
 }) => {
 	// Installing the service worker (about 1 MB of precache) is slow on a busy machine.
-	test.setTimeout(90_000);
+	test.setTimeout(180_000);
 	const code = await createFixture('Never-opened reference flat mount', {
 		type: 'trihedral-vee-flat'
 	});

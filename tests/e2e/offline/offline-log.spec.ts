@@ -7,7 +7,7 @@ test('entries logged offline survive a reload and reach the server exactly once'
 	context
 }) => {
 	// Installing the service worker (about 1 MB of precache) is slow on a busy machine.
-	test.setTimeout(90_000);
+	test.setTimeout(180_000);
 	const waiting = page.getByText('Waiting to sync', { exact: true });
 	const code = await createFixture('Offline test pallet', { mass_kg: 18.5 });
 	await signInAs(page, 'operator');

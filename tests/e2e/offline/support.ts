@@ -67,7 +67,7 @@ export async function serverEvents(
 /** Waits until the service worker controls the page, then reloads so the page itself is cached. */
 export async function cacheForOffline(page: Page): Promise<void> {
 	await page.waitForFunction(() => navigator.serviceWorker?.controller != null, null, {
-		timeout: 30_000
+		timeout: 120_000
 	});
 	await page.reload();
 	await page.waitForFunction(() => navigator.serviceWorker?.controller != null);
