@@ -6,11 +6,13 @@
 import { benchDomain } from './bench/domain';
 import { benchIngest } from './bench/ingest';
 import { benchScanBundle } from './bench/scan-bundle';
+import { benchScanToWaiting } from './bench/scan-to-waiting';
 
 const SECTIONS: { name: string; run: () => Promise<unknown> }[] = [
 	{ name: 'domain', run: benchDomain },
 	{ name: 'ingest', run: benchIngest },
-	{ name: 'scan-bundle', run: benchScanBundle }
+	{ name: 'scan-bundle', run: benchScanBundle },
+	{ name: 'scan-to-waiting', run: benchScanToWaiting }
 ];
 
 const wanted = process.argv.slice(2);
