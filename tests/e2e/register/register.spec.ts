@@ -6,6 +6,10 @@ import { signInAs } from '../helpers/auth';
 // rerun against the same database never finds the previous run's fixtures.
 const run = Date.now().toString(36);
 
+// Each test signs in (bcrypt at cost 12) and walks several pages; on a busy two-core machine that
+// can pass the default 30 s without anything being wrong.
+test.describe.configure({ timeout: 90_000 });
+
 test.describe('fixture register', () => {
 	test('a supervisor adds a fixture and finds it by search', async ({ page }) => {
 		await signInAs(page, 'supervisor', '/fixtures');
