@@ -474,7 +474,7 @@ export async function update(
 	patch: FixturePatch
 ): Promise<{ code: string; moved: boolean } | null> {
 	assertRole(actor, REGISTER_EDITORS, 'change fixtures');
-	return db.transaction(async (tx) => {
+	const result = await db.transaction(async (tx) => {
 		const reading = normaliseFixtureCode(code);
 		if (!reading.ok) return null;
 		// Locked, so two edits that both move the fixture record the right "from" each time.
@@ -514,8 +514,16 @@ export async function update(
 				contentHash: createHash('sha256').update(canonicalJson(content)).digest('hex')
 			});
 		}
-		return { code: row.code, moved };
+		return { code: row.code, moved, fixtureId: row.id };
 	});
+	if (!result) return null;
+	if (result.moved) {
+		// The move is part of the history, so fold it into the derived state like any event.
+		// Imported lazily: the health module imports this one.
+		const { rebuildStates } = await import('./health');
+		await rebuildStates({ fix: true, ids: [result.fixtureId] });
+	}
+	return { code: result.code, moved: result.moved };
 }
 
 /* ---------------------------------------------------------------------------------------- */

@@ -316,15 +316,16 @@ export function differingFields(stored: unknown, rebuilt: unknown): string[] {
 }
 
 /**
- * Recomputes every fixture's state from its full history and compares it with the stored one.
+ * Recomputes every fixture's state (or those in `ids`) from its full history and compares it with
+ * the stored one.
  * With `fix`, writes the recomputed states of the fixtures that differed and re-evaluates their
  * flags, in the same transaction per chunk.
  */
 export async function rebuildStates(
-	options: { fix?: boolean; now?: Date } = {}
+	options: { fix?: boolean; now?: Date; ids?: number[] } = {}
 ): Promise<RebuildReport> {
 	const now = options.now ?? new Date();
-	const all = await loadHealthFixtures();
+	const all = await loadHealthFixtures(options.ids);
 	const report: RebuildReport = { checked: 0, differing: [], fixed: !!options.fix };
 	for (const fixtures of chunks(all)) {
 		const policies = await policiesFor(fixtures);

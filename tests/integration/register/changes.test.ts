@@ -5,6 +5,7 @@ import { generateFixtureCode, isValidFixtureCode, seededRandom } from '$lib/doma
 import { fixtureCreateSchema } from '$lib/schemas/fixture-form';
 import * as fixtures from '$lib/server/fixtures';
 import { ForbiddenError } from '$lib/server/guard';
+import { rebuildStates } from '$lib/server/health';
 import { closeDb, db, makeFixture, makeLocation, makeUser, resetDb, schema } from '../helpers/db';
 
 const input = (locationId: number, extra: Record<string, unknown> = {}) =>
@@ -129,6 +130,10 @@ describe('update', () => {
 		// The fixture page's recent events show the move with who did it.
 		const d = (await fixtures.getByCode(f.code))!;
 		expect(d.recentEvents[0]).toMatchObject({ kind: 'move', user: { name: sup.name } });
+		// The move is folded into the derived state, so a full rebuild finds nothing to correct.
+		const report = await rebuildStates({ ids: [f.id] });
+		expect(report.checked).toBe(1);
+		expect(report.differing).toEqual([]);
 	});
 
 	it('writes nothing when the new location does not exist', async () => {
