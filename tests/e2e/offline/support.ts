@@ -78,3 +78,30 @@ export async function waitingIds(page: Page): Promise<string[]> {
 	const rows = page.getByRole('listitem').filter({ hasText: 'Waiting to sync' });
 	return rows.evaluateAll((els) => els.map((e) => e.getAttribute('data-event-id') ?? ''));
 }
+
+/** Gives a fixture another code straight in the database (as if it were relabelled elsewhere). */
+export async function setFixtureCode(from: string, to: string): Promise<void> {
+	const conn = await mysql.createConnection({ uri: process.env.DATABASE_URL! });
+	try {
+		await conn.query('UPDATE fixtures SET code = ? WHERE code = ?', [to, from]);
+	} finally {
+		await conn.end();
+	}
+}
+
+/** A valid fixture code no fixture has. */
+export async function freeCode(): Promise<string> {
+	const conn = await mysql.createConnection({ uri: process.env.DATABASE_URL! });
+	try {
+		for (;;) {
+			const code = generateFixtureCode();
+			const [taken] = await conn.query<mysql.RowDataPacket[]>(
+				'SELECT 1 FROM fixtures WHERE code = ?',
+				[code]
+			);
+			if (!taken.length) return code;
+		}
+	} finally {
+		await conn.end();
+	}
+}
