@@ -9,7 +9,7 @@ test('a sync the network cut after the server stored it is retried without doubl
 	page
 }) => {
 	// Room for one back-off delay of the sync loop on a busy machine.
-	test.setTimeout(60_000);
+	test.setTimeout(90_000);
 	const waiting = page.getByText('Waiting to sync', { exact: true });
 	const code = await createFixture('Abort test probe mount', { type: 'trihedral-vee-flat' });
 	await signInAs(page, 'operator');
