@@ -4,6 +4,8 @@ import { mailSince, waitForMail } from '../helpers/mail';
 
 // Several browser contexts and server round trips per step: give a busy machine time.
 test.describe.configure({ timeout: 90_000 });
+// No offline cache needed here; a service worker installing in every fresh context only competes.
+test.use({ serviceWorkers: 'block' });
 const expect = baseExpect.configure({ timeout: 15_000 });
 
 test('a sign-in link from the captured mail signs the person in, once', async ({
@@ -58,8 +60,7 @@ test('an admin reads the captured mail, with the link clickable', async ({ page,
 	await expect(req).toHaveURL(/check-mail/);
 	await waitForMail(email, since);
 
-	await signInAs(page, 'admin');
-	await page.goto('/admin/mail');
+	await signInAs(page, 'admin', '/admin/mail');
 	await expect(page.getByRole('heading', { name: 'Captured mail' })).toBeVisible();
 	const newest = page.getByRole('main').getByRole('listitem').first();
 	await expect(newest).toContainText('Your Nestmark sign-in link');

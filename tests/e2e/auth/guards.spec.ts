@@ -1,6 +1,9 @@
 import { expect, test } from '@playwright/test';
 import { signInAs } from '../helpers/auth';
 
+// No offline cache needed here; a service worker installing in every fresh context only competes.
+test.use({ serviceWorkers: 'block' });
+
 test('an operator opening the admin pages gets the 403 page', async ({ page }) => {
 	await signInAs(page, 'operator');
 	const response = await page.goto('/admin/users');

@@ -2,6 +2,9 @@ import { expect, test } from '@playwright/test';
 import { ROLES } from '../../../src/lib/schemas/roles';
 import { demoAccount, signInAs, signOut, submitPassword } from '../helpers/auth';
 
+// No offline cache needed here; a service worker installing in every fresh context only competes.
+test.use({ serviceWorkers: 'block' });
+
 test.describe('signing in with a password', () => {
 	for (const role of ROLES) {
 		test(`the ${role} demo account signs in and sees what the role allows`, async ({ page }) => {
