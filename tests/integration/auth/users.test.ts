@@ -9,6 +9,8 @@ import * as people from '$lib/server/users';
 import { closeDb, db, makeFixture, makeUser, resetDb, schema } from '../helpers/db';
 import { firstLink, mailTo } from './mail';
 
+// The invitation tests send real mail: `npm test` runs the fake SMTP server (scripts/mail-fake.ts)
+// on SMTP_PORT and these tests read what it saved in MAIL_CAPTURE_DIR.
 beforeAll(resetDb);
 afterAll(async () => {
 	closeMail();
