@@ -38,6 +38,7 @@ import { DomainInputError } from './errors';
 import { type Forecast, forecastCrossing } from './forecast';
 import { type Policy, assertPolicy } from './policy';
 import { D2, RULE_LENGTH, RULE_TEXT, type RunRule, runRuleHits } from './spc';
+import { isoMs } from './time';
 
 export type FixtureStatus = 'in-service' | 'breaking-in' | 'on-hold';
 export type BreakInReason = 'new' | 'part-swap' | 'relubricated';
@@ -282,18 +283,23 @@ function copyAxis(a: AxisSpc): AxisSpc {
 	return { n: a.n, sum: a.sum, sumMR: a.sumMR, last: a.last, count: a.count, tail: a.tail.slice() };
 }
 
-/** Copies of the parts that folding readings changes in place. */
-function copyReadingParts(w: FixtureState): void {
+/**
+ * Copies of the parts that folding readings changes in place: during a break-in its settling
+ * windows, afterwards the trend windows and SPC sums (see addReading); all of them for `all`.
+ */
+function copyReadingParts(w: FixtureState, all: boolean): void {
 	w.recent = w.recent.slice();
-	w.breakIn = copyBreakIn(w.breakIn, true);
-	w.trend = { acc: w.trend.acc.slice(), windows: w.trend.windows.slice() };
-	w.spc = [copyAxis(w.spc[0]), copyAxis(w.spc[1]), copyAxis(w.spc[2])];
+	if (all || w.breakIn.required) w.breakIn = copyBreakIn(w.breakIn, true);
+	if (all || !w.breakIn.required) {
+		w.trend = { acc: w.trend.acc.slice(), windows: w.trend.windows.slice() };
+		w.spc = [copyAxis(w.spc[0]), copyAxis(w.spc[1]), copyAxis(w.spc[2])];
+	}
 }
 
 /** A deep copy of a state (it is plain JSON). */
 export function cloneState(state: FixtureState): FixtureState {
 	const w = copyTop(state);
-	copyReadingParts(w);
+	copyReadingParts(w, true);
 	w.wear = {
 		grade: state.wear.grade,
 		verdict: state.wear.verdict,
@@ -583,8 +589,8 @@ function draftFor(s: FixtureState, ev: FixtureEvent): FixtureState {
 				? p.readings !== undefined
 				: ((p.readings as unknown[] | undefined)?.length ?? 0) > 0;
 		// Cycles and completion change in place; windows and sums only when there are readings.
-		if (readings) copyReadingParts(w);
-		else w.breakIn = copyBreakIn(s.breakIn, false);
+		if (readings) copyReadingParts(w, false);
+		if (s.breakIn.required && w.breakIn === s.breakIn) w.breakIn = copyBreakIn(s.breakIn, false);
 	}
 	return w;
 }
@@ -633,7 +639,7 @@ export function isOutOfOrder(
 	state: FixtureState,
 	event: Pick<FixtureEvent, 'occurredAt'>
 ): boolean {
-	return state.lastEventAt !== null && Date.parse(event.occurredAt) < Date.parse(state.lastEventAt);
+	return state.lastEventAt !== null && isoMs(event.occurredAt) < isoMs(state.lastEventAt);
 }
 
 /** Order for folding: by occurredAt, then by id so equal times fold the same way everywhere. */
@@ -641,9 +647,7 @@ export function compareEvents(
 	a: Pick<FixtureEvent, 'occurredAt' | 'id'>,
 	b: Pick<FixtureEvent, 'occurredAt' | 'id'>
 ): number {
-	return (
-		Date.parse(a.occurredAt) - Date.parse(b.occurredAt) || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0)
-	);
+	return isoMs(a.occurredAt) - isoMs(b.occurredAt) || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
 }
 
 /** R = 4s per axis over the stored recent readings; the worst axis, or null with too few. */
@@ -653,18 +657,36 @@ export function recentRepeatability(state: FixtureState): {
 	n: number;
 	perAxis: Partial<Record<'x' | 'y' | 'z', number>>;
 } | null {
-	const acc = newAcc();
-	for (const r of state.recent) accumulate(acc, r);
-	let worst: { R: number; axis: 'x' | 'y' | 'z' } | null = null;
+	const recent = state.recent;
 	const perAxis: Partial<Record<'x' | 'y' | 'z', number>> = {};
+	let bestR = -1;
+	let bestAxis: 'x' | 'y' | 'z' = 'x';
 	for (let a = 0; a < 3; a++) {
-		const n = acc[1 + 3 * a];
+		// Two passes (mean, then squares) over at most repeatabilityWindow readings.
+		let n = 0;
+		let sum = 0;
+		for (let i = 0; i < recent.length; i++) {
+			const v = recent[i][a];
+			if (v !== null) {
+				n++;
+				sum += v;
+			}
+		}
 		if (n < 2) continue;
-		const R = 4 * Math.sqrt(Math.max(acc[3 + 3 * a], 0) / (n - 1));
+		const mean = sum / n;
+		let ss = 0;
+		for (let i = 0; i < recent.length; i++) {
+			const v = recent[i][a];
+			if (v !== null) ss += (v - mean) * (v - mean);
+		}
+		const R = 4 * Math.sqrt(ss / (n - 1));
 		perAxis[AXIS_NAMES[a]] = R;
-		if (!worst || R > worst.R) worst = { R, axis: AXIS_NAMES[a] };
+		if (R > bestR) {
+			bestR = R;
+			bestAxis = AXIS_NAMES[a];
+		}
 	}
-	return worst ? { ...worst, n: state.recent.length, perAxis } : null;
+	return bestR < 0 ? null : { R: bestR, axis: bestAxis, n: recent.length, perAxis };
 }
 
 /** Theil–Sen forecast of windowed R against cycles, or null before FORECAST_MIN_WINDOWS windows. */
@@ -681,7 +703,12 @@ export function fixtureForecast(
 		{ method: 'theil-sen', intercept: 'separate' }
 	);
 	return {
-		...f,
+		slope: f.slope,
+		intercept: f.intercept,
+		status: f.status,
+		crossingX: f.crossingX,
+		latestX: f.latestX,
+		n: f.n,
 		cyclesToSpec: f.crossingX === null ? null : f.crossingX - state.totalCycles,
 		windows: ws.length
 	};
@@ -730,7 +757,7 @@ function intervalFlag(
 		);
 	}
 	if (intervalDays !== null && ref !== null) {
-		days = Math.floor((now - Date.parse(ref)) / DAY_MS);
+		days = Math.floor((now - isoMs(ref)) / DAY_MS);
 		if (days >= intervalDays) {
 			const since = last
 				? `the last ${what} on ${day(ref)}`

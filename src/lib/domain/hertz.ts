@@ -393,6 +393,16 @@ export function hertzBallInGroove(p: {
 	};
 }
 
+/** Result of allowableLoad. */
+export interface AllowableLoad {
+	/** Largest load (N) on the coupling contact: the vertical load for a vee. */
+	load_N: number;
+	/** Normal load (N) on each flank at that load (equal to load_N for a ball on a flat). */
+	flankLoad_N: number;
+	/** The peak-pressure limit used (MPa). */
+	limit_MPa: number;
+}
+
 /**
  * Load at which a circular contact reaches peak pressure p0: F = p0³π³R²/(6E*²). For a vee, the
  * vertical load at which each flank reaches it. ISO 76's 4200 MPa is a screening limit here, not a
@@ -405,7 +415,7 @@ export function allowableLoad(p: {
 	ball: Material;
 	seat: Material;
 	limit_MPa?: number;
-}): { load_N: number; flankLoad_N: number; limit_MPa: number } {
+}): AllowableLoad {
 	const D = requirePositive(p.ballDiameter_mm, 'ballDiameter_mm') / 1e3;
 	const limit = requirePositive(p.limit_MPa ?? ISO76_BALL_LIMIT_MPA, 'limit_MPa');
 	const Estar = effectiveModulus(checkMaterial(p.ball, 'ball'), checkMaterial(p.seat, 'seat'));

@@ -3,6 +3,7 @@
  * GPa, stresses in MPa, readings and repeatability in µm, stiffness in N/µm.
  */
 export { DomainInputError } from './errors';
+export { isoMs } from './time';
 export type { Vec3 } from './vec';
 export {
 	analyzeConstraints,
@@ -31,7 +32,8 @@ export {
 	MATERIAL_SOURCES,
 	ISO76_BALL_LIMIT_MPA,
 	type Material,
-	type HertzContact
+	type HertzContact,
+	type AllowableLoad
 } from './hertz';
 export { circularMaxShear, ellipticalMaxShear } from './subsurface';
 export {

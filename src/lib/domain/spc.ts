@@ -86,9 +86,18 @@ export interface RuleHit {
 	index: number;
 }
 
-function countSide(values: number[], end: number, len: number, test: (x: number) => boolean) {
+/** Points in values[end − len + 1 .. end] strictly above `over` (side 1) or below it (side −1). */
+function countBeyond(
+	values: number[],
+	end: number,
+	len: number,
+	over: number,
+	side: 1 | -1
+): number {
 	let n = 0;
-	for (let i = end - len + 1; i <= end; i++) if (test(values[i])) n++;
+	for (let i = end - len + 1; i <= end; i++) {
+		if (side === 1 ? values[i] > over : values[i] < over) n++;
+	}
 	return n;
 }
 
@@ -96,24 +105,27 @@ function countSide(values: number[], end: number, len: number, test: (x: number)
 export function ruleFires(rule: RunRule, values: number[], end: number, l: ChartLimits): boolean {
 	const len = RULE_LENGTH[rule];
 	if (end - len + 1 < 0) return false;
-	const { center: c, sigma: s } = l;
-	const above = (k: number) => (x: number) => x > c + k * s;
-	const below = (k: number) => (x: number) => x < c - k * s;
+	const c = l.center;
+	const s = l.sigma;
 	switch (rule) {
 		case 'WE1':
 		case 'N1':
 			return values[end] > l.ucl || values[end] < l.lcl;
 		case 'WE2':
 		case 'N5':
-			return countSide(values, end, 3, above(2)) >= 2 || countSide(values, end, 3, below(2)) >= 2;
+			return (
+				countBeyond(values, end, 3, c + 2 * s, 1) >= 2 ||
+				countBeyond(values, end, 3, c - 2 * s, -1) >= 2
+			);
 		case 'WE3':
 		case 'N6':
-			return countSide(values, end, 5, above(1)) >= 4 || countSide(values, end, 5, below(1)) >= 4;
+			return (
+				countBeyond(values, end, 5, c + s, 1) >= 4 || countBeyond(values, end, 5, c - s, -1) >= 4
+			);
 		case 'WE4':
 		case 'N2':
 			return (
-				countSide(values, end, len, above(0)) === len ||
-				countSide(values, end, len, below(0)) === len
+				countBeyond(values, end, len, c, 1) === len || countBeyond(values, end, len, c, -1) === len
 			);
 		case 'N3': {
 			let up = true;
@@ -133,11 +145,13 @@ export function ruleFires(rule: RunRule, values: number[], end: number, l: Chart
 			}
 			return true;
 		}
-		case 'N7':
-			return countSide(values, end, 15, (x) => Math.abs(x - c) <= s) === 15;
+		case 'N7': {
+			for (let i = end - 14; i <= end; i++) if (Math.abs(values[i] - c) > s) return false;
+			return true;
+		}
 		case 'N8': {
-			const hi = countSide(values, end, 8, above(1));
-			const lo = countSide(values, end, 8, below(1));
+			const hi = countBeyond(values, end, 8, c + s, 1);
+			const lo = countBeyond(values, end, 8, c - s, -1);
 			return hi + lo === 8 && hi > 0 && lo > 0;
 		}
 	}
