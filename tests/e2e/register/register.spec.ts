@@ -191,7 +191,8 @@ test.describe('CSV import', () => {
 		expect(lines[0]).toBe(
 			'code,name,type,site,area,location,status,repeatability_spec_um,rated_life_cycles,ball_material,seat_material,ball_diameter_mm,preload_n,mass_kg,commissioned_on,notes'
 		);
-		expect(lines.slice(1).every((l) => l.includes('Reference flat mount'))).toBe(true);
+		// Search ignores case, and other specs may add fixtures with the phrase in lower case.
+		expect(lines.slice(1).every((l) => /reference flat mount/i.test(l))).toBe(true);
 		expect(lines.length).toBeGreaterThanOrEqual(7);
 	});
 });
