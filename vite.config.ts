@@ -53,12 +53,11 @@ export default defineConfig({
 				clientsClaim: true,
 				runtimeCaching: [
 					{
-						// Page loads, except sign-in/out and machine endpoints, which must always come
-						// from the network. (Functions here are copied into the worker as source text,
-						// so they cannot refer to anything outside themselves.)
+						// The floor pages (start, scanner, fixture cards, outbox): what must open with no
+						// network. Office pages always come from the server. (Functions here are copied
+						// into the worker as source text, so they cannot refer to anything outside.)
 						urlPattern: ({ request, url }) =>
-							request.mode === 'navigate' &&
-							!/^\/(auth|api|signin|signout)(\/|$)/.test(url.pathname),
+							request.mode === 'navigate' && /^\/($|scan$|outbox$|f\/[^/]+$)/.test(url.pathname),
 						handler: 'NetworkFirst',
 						options: {
 							cacheName: 'nestmark-pages',
