@@ -203,15 +203,14 @@ export async function fixEntry(id: string, payload: Record<string, unknown>): Pr
 		payload
 	});
 	if (!parsed.ok) return { ok: false, errors: parsed.errors };
+	const { error: _refused, ...kept } = old;
 	const entry: OutboxEntry = {
-		...old,
+		...kept,
 		...parsed.event,
 		payload: parsed.event.payload as Record<string, unknown>,
 		state: 'waiting',
-		error: undefined,
 		attempts: 0
 	};
-	delete entry.error;
 	const tx = db.transaction('outbox', 'readwrite');
 	await tx.store.delete(id);
 	await tx.store.add(entry);

@@ -155,7 +155,7 @@ export class SyncEngine {
 				delivered += batch.length;
 				answered = true;
 			}
-			if (outcome === 'ok' && (await this.#snapshotDue(delivered > 0))) {
+			if (outcome === 'ok' && this.#snapshotDue(delivered > 0)) {
 				const r = await refreshSnapshot(this.#fetch);
 				if (r.status === 'signed-out') outcome = 'signed-out';
 				else if (r.status === 'offline') outcome = 'network';
@@ -241,7 +241,7 @@ export class SyncEngine {
 		return 'server';
 	}
 
-	async #snapshotDue(changed: boolean): Promise<boolean> {
+	#snapshotDue(changed: boolean): boolean {
 		return changed || Date.now() - this.#lastSnapshotCheck >= SYNC_IDLE_POLL_MS;
 	}
 
