@@ -69,6 +69,8 @@ interface Prepared {
 // Below these, a scaled quantity is treated as numerically zero when classifying freedoms.
 const OMEGA_ZERO = 1e-8;
 const PITCH_ZERO = 1e-7;
+// Smallest ratio of two opposite principal pitches that are combined into pure rotations.
+const PITCH_BALANCE = 1e-6;
 
 function prepare(contacts: Contact[], lengthScale?: number): Prepared {
 	if (!Array.isArray(contacts)) throw new DomainInputError('contacts', 'must be an array');
@@ -191,7 +193,8 @@ const velOf = (t: Six): Vec3 => [t[3], t[4], t[5]];
  * Turn an orthonormal null-space basis into readable freedoms: translations first (the part with
  * no rotation), then the principal screws of the rest; where the pitch form is indefinite, pairs of
  * principal screws of opposite pitch are combined into zero-pitch twists (pure rotations), which
- * for a two-freedom system are exactly its two real rotation axes.
+ * for a two-freedom system are exactly its two real rotation axes — unless the two pitches differ
+ * by more than a factor 1e6, when those rotations would be nearly parallel and the screws are kept.
  */
 function readableFreedoms(nulls: Six[], prep: Prepared): Twist[] {
 	const d = nulls.length;
@@ -252,9 +255,15 @@ function readableFreedoms(nulls: Six[], prep: Prepared): Twist[] {
 	if (pos.length > 0 && neg.length > 0) {
 		const iso = (p: (typeof principal)[number], q: (typeof principal)[number], sign: number) =>
 			lin([p.t, q.t], [Math.sqrt(-q.h), sign * Math.sqrt(p.h)]);
-		twists.push(iso(pos[0], neg[0], 1), iso(pos[0], neg[0], -1));
-		for (const p of pos.slice(1)) twists.push(iso(p, neg[0], 1));
-		for (const q of neg.slice(1)) twists.push(iso(pos[0], q, 1));
+		// Pitches of very different size give zero-pitch twists that are nearly parallel (axes
+		// far away, almost translations): keep the principal screws there, a well-conditioned basis.
+		const balanced = (p: (typeof principal)[number], q: (typeof principal)[number]) =>
+			Math.min(p.h, -q.h) / Math.max(p.h, -q.h) >= PITCH_BALANCE;
+		const [p0, q0] = [pos[0], neg[0]];
+		if (balanced(p0, q0)) twists.push(iso(p0, q0, 1), iso(p0, q0, -1));
+		else twists.push(p0.t, q0.t);
+		for (const p of pos.slice(1)) twists.push(balanced(p, q0) ? iso(p, q0, 1) : p.t);
+		for (const q of neg.slice(1)) twists.push(balanced(p0, q) ? iso(p0, q, 1) : q.t);
 	} else {
 		twists.push(...pos.map((p) => p.t), ...neg.map((p) => p.t));
 	}
