@@ -40,7 +40,9 @@ import { type Policy, assertPolicy } from './policy';
 import { D2, RULE_LENGTH, RULE_TEXT, type RunRule, runRuleHits } from './spc';
 import { isoMs } from './time';
 
+/** Derived status: on hold wins over breaking in. */
 export type FixtureStatus = 'in-service' | 'breaking-in' | 'on-hold';
+/** Why a break-in is (or was last) required. */
 export type BreakInReason = 'new' | 'part-swap' | 'relubricated';
 
 /** A seating's readings as stored: [dx, dy, dz] in µm, null where the axis was not measured. */
@@ -124,6 +126,7 @@ export interface FixtureState {
 	wear: { grade: number | null; verdict: InspectionVerdict | null; marks: WearMark[] };
 }
 
+/** The flags of the health rules. */
 export type FlagKind =
 	| 'break-in-due'
 	| 'cleaning-due'

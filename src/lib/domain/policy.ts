@@ -5,6 +5,7 @@
 import { WEAR_GRADE_MAX } from '../schemas/wear';
 import { DomainInputError, requireInteger, requireNonNegative, requirePositive } from './errors';
 
+/** The policy fields; units in the names (µm, cycles, days). */
 export interface Policy {
 	/** Spec for R = 4s (µm) over the latest window of seatings with readings. */
 	repeatabilitySpec_um: number;
@@ -50,6 +51,7 @@ export const DEFAULT_POLICY: Policy = {
 	forecastHorizonCycles: 2000
 };
 
+/** Basis of each default, for the code's readers and the policy page. */
 export const POLICY_SOURCES: Record<keyof Policy, PolicySource> = {
 	repeatabilitySpec_um: {
 		basis: 'common practice',

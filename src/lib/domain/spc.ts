@@ -18,13 +18,16 @@
  */
 import { DomainInputError, requireInteger } from './errors';
 
+/** d₂ for moving ranges of two points (NIST/SEMATECH §6.3.2): σ̂ = MR̄/d₂. */
 export const D2 = 1.128;
+/** D₄ for moving ranges of two points: MR chart UCL = D₄·MR̄. */
 export const D4 = 3.267;
 
 /** Run-rule names: WE1–WE4 Western Electric, N1–N8 Nelson. */
 export type RunRule =
 	'WE1' | 'WE2' | 'WE3' | 'WE4' | 'N1' | 'N2' | 'N3' | 'N4' | 'N5' | 'N6' | 'N7' | 'N8';
 
+/** Every rule, in the order hits are reported. */
 export const ALL_RULES: readonly RunRule[] = [
 	'WE1',
 	'WE2',

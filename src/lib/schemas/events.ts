@@ -19,6 +19,7 @@ export const EVENT_KINDS = [
 	'release',
 	'note'
 ] as const;
+/** One of EVENT_KINDS. */
 export const eventKindSchema = z.enum(EVENT_KINDS, {
 	error: `Kind must be one of: ${EVENT_KINDS.join(', ')}`
 });
@@ -76,6 +77,7 @@ export const readingSchema = z
 		message: 'A reading needs at least one of dx, dy, dz (µm)'
 	});
 
+/** Reseat: cycles (default 1) and optional readings of the last seating. */
 export const reseatPayloadSchema = z.strictObject({
 	cycles: cycles('Cycles').default(1),
 	readings: readingSchema.optional()
@@ -90,6 +92,7 @@ export const CLEANING_METHODS = [
 	'other'
 ] as const;
 
+/** Cleaning: method, whether the contacts were relubricated, and with what. */
 export const cleaningPayloadSchema = z
 	.strictObject({
 		method: z.enum(CLEANING_METHODS, {
@@ -104,6 +107,7 @@ export const cleaningPayloadSchema = z
 		path: ['lubricant']
 	});
 
+/** One graded contact of an inspection. */
 export const inspectionContactSchema = z.strictObject({
 	contact: text('Contact', 40),
 	grade: wearGradeSchema,
@@ -114,6 +118,7 @@ export const inspectionContactSchema = z.strictObject({
 		.default([])
 });
 
+/** Inspection: graded contacts, verdict, photo ids. */
 export const inspectionPayloadSchema = z.strictObject({
 	contacts: z
 		.array(inspectionContactSchema)
@@ -131,6 +136,7 @@ export const inspectionPayloadSchema = z.strictObject({
 	note: text('Note', 2000).optional()
 });
 
+/** Break-in run: cycles and the readings taken during it, oldest first. */
 export const breakInPayloadSchema = z
 	.strictObject({
 		cycles: cycles('Cycles'),
@@ -145,6 +151,7 @@ export const breakInPayloadSchema = z
 /** Parts a swap can replace. 'seats' covers vees, grooves, sockets and flats. */
 export const SWAPPABLE_PARTS = ['balls', 'seats', 'preload', 'whole-fixture', 'other'] as const;
 
+/** Part swap: what was replaced. */
 export const partSwapPayloadSchema = z
 	.strictObject({
 		replaced: z
@@ -162,15 +169,19 @@ export const partSwapPayloadSchema = z
 		path: ['description']
 	});
 
+/** Move to another location (by id). */
 export const movePayloadSchema = z.strictObject({
 	locationId: text('Location', 64),
 	note: text('Note', 500).optional()
 });
 
+/** Hold: take out of service, with the reason. */
 export const holdPayloadSchema = z.strictObject({ reason: text('Reason', 500) });
 
+/** Release from hold. */
 export const releasePayloadSchema = z.strictObject({ note: text('Note', 500).optional() });
 
+/** Free-text note. */
 export const notePayloadSchema = z.strictObject({ text: text('Text', 2000) });
 
 /** Payload schema of each kind. */

@@ -41,6 +41,7 @@ export const WEAR_GRADES = [
 /** Highest grade on the scale. */
 export const WEAR_GRADE_MAX = 4;
 
+/** A whole grade on WEAR_GRADES. */
 export const wearGradeSchema = z
 	.number({ error: 'Wear grade must be a number from 0 to 4' })
 	.int('Wear grade must be a whole number')
@@ -50,6 +51,7 @@ export type WearGrade = z.infer<typeof wearGradeSchema>;
 
 /** Marks an inspector can tick for a contact (trade terms). */
 export const WEAR_MARKS = ['fretting', 'pitting', 'brinelling', 'corrosion', 'debris'] as const;
+/** One of WEAR_MARKS. */
 export const wearMarkSchema = z.enum(WEAR_MARKS, {
 	error: `Mark must be one of: ${WEAR_MARKS.join(', ')}`
 });
@@ -57,6 +59,7 @@ export type WearMark = z.infer<typeof wearMarkSchema>;
 
 /** Overall verdict of an inspection. */
 export const INSPECTION_VERDICTS = ['serviceable', 'watch', 'replace'] as const;
+/** One of INSPECTION_VERDICTS. */
 export const inspectionVerdictSchema = z.enum(INSPECTION_VERDICTS, {
 	error: `Verdict must be one of: ${INSPECTION_VERDICTS.join(', ')}`
 });
