@@ -127,6 +127,20 @@ function cachedCircularShear(nu: number) {
 	return hit;
 }
 
+const ellipseCache = new Map<string, { tau: number; depth: number }>();
+/** τ_max/p0 and depth/b below an ellipse depend only on b/a and ν: computed once per pair. */
+function cachedEllipticalShear(ratio: number, nu: number) {
+	const key = `${ratio.toPrecision(12)}|${nu}`;
+	let hit = ellipseCache.get(key);
+	if (!hit) {
+		const s = ellipticalMaxShear(1, ratio, nu);
+		hit = { tau: s.tau, depth: s.depth / ratio };
+		if (ellipseCache.size > 256) ellipseCache.clear();
+		ellipseCache.set(key, hit);
+	}
+	return hit;
+}
+
 /** Circular Hertz contact for load F (N), effective radius R (m, positive), modulus E* (Pa). */
 function circular(F: number, R: number, Estar: number, bodies: Body[]): HertzContact {
 	const a = Math.cbrt((3 * F * R) / (4 * Estar));
@@ -369,10 +383,7 @@ export function hertzBallInGroove(p: {
 	const shear = shearInBodies(
 		bodies,
 		core.p0,
-		(nu) => {
-			const s = ellipticalMaxShear(core.a, core.b, nu);
-			return { tau: s.tau, depth: s.depth / core.b };
-		},
+		(nu) => cachedEllipticalShear(core.b / core.a, nu),
 		core.b
 	);
 	return {

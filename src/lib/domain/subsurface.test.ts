@@ -72,6 +72,13 @@ describe('elliptical contact, on-axis stresses by Boussinesq quadrature', () => 
 		expect(m.depth).toBeCloseTo(0.786, 2);
 	});
 
+	it('depends only on b/a once depth is measured in b (what the Hertz module caches on)', () => {
+		const small = ellipticalMaxShear(3, 1, 0.27);
+		const large = ellipticalMaxShear(30, 10, 0.27);
+		expect(large.tau).toBeCloseTo(small.tau, 9);
+		expect(large.depth / 10).toBeCloseTo(small.depth, 6);
+	});
+
 	it('agrees with a plain polar quadrature of the same integral for a/b = 3 [C]', () => {
 		// Independent quadrature: x = a s cos φ, y = b s sin φ, s = sin t, many nodes, one panel.
 		const a = 3;
