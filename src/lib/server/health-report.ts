@@ -12,7 +12,7 @@ import { normaliseFixtureCode } from '../domain/fixture-code';
 import type { FlagsQuery } from '../schemas/flags-query';
 import { db, getPool, schema } from './db';
 import { loadHealthFixtures, policiesFor } from './health';
-import { initialStateFor } from './ingest';
+import { initialStateFor } from './state-store';
 
 /** Readings returned for the charts (the latest ones). */
 export const CHART_READINGS = 500;

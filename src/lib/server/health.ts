@@ -19,13 +19,25 @@ import {
 	type Flag,
 	type FixtureState
 } from '../domain/health';
-import type { Policy } from '../domain/policy';
 import type { FixtureEvent } from '../schemas/events';
-import type { FixtureType } from '../schemas/fixture';
 import { getPool } from './db';
 import { canonicalJson } from './fixtures';
-import { initialStateFor, initialStateOptions, stateColumns } from './ingest';
-import { effectivePolicy, type PolicySubject } from './policies';
+import {
+	diffFlags,
+	flagRows,
+	HEALTH_FIXTURE_COLUMNS,
+	initialStateFor,
+	initialStateOptions,
+	loadStoredStates,
+	parseJson,
+	policiesFor,
+	toHealthFixture,
+	upsertStates,
+	writeFlags,
+	type HealthFixture
+} from './state-store';
+
+export { policiesFor, type HealthFixture };
 
 /** Fixtures handled per transaction. */
 const CHUNK = 200;
@@ -33,65 +45,14 @@ const CHUNK = 200;
 /** Flags that can become due with the passing of time alone. */
 export const CALENDAR_FLAG_KINDS: readonly Flag['kind'][] = ['cleaning-due', 'inspection-due'];
 
-/** What health work needs to know about a fixture. */
-export interface HealthFixture extends PolicySubject {
-	id: number;
-	code: string;
-	commissionedOn: string | null;
-}
-
-const parseJson = <T>(v: unknown): T | null =>
-	v === null || v === undefined ? null : typeof v === 'string' ? (JSON.parse(v) as T) : (v as T);
-
-const FIXTURE_COLUMNS = `id, code, type, policy_id, policy_overrides, repeatability_spec_um,
-	rated_life_cycles, DATE_FORMAT(commissioned_on, '%Y-%m-%d') AS commissioned_on`;
-
-function toFixture(r: RowDataPacket): HealthFixture {
-	return {
-		id: r.id,
-		code: r.code,
-		type: r.type as FixtureType,
-		policyId: r.policy_id,
-		policyOverrides: parseJson(r.policy_overrides),
-		repeatabilitySpec_um: r.repeatability_spec_um,
-		ratedLifeCycles: r.rated_life_cycles,
-		commissionedOn: r.commissioned_on
-	};
-}
-
 /** Fixtures by id (all of them when `ids` is omitted), in id order. */
 export async function loadHealthFixtures(ids?: number[]): Promise<HealthFixture[]> {
 	if (ids && !ids.length) return [];
 	const [rows] = await getPool().query<RowDataPacket[]>(
-		`SELECT ${FIXTURE_COLUMNS} FROM fixtures ${ids ? 'WHERE id IN (?)' : ''} ORDER BY id`,
+		`SELECT ${HEALTH_FIXTURE_COLUMNS} FROM fixtures ${ids ? 'WHERE id IN (?)' : ''} ORDER BY id`,
 		ids ? [ids] : []
 	);
-	return rows.map(toFixture);
-}
-
-/** The effective policy of each fixture, asked once per distinct set of policy inputs. */
-export async function policiesFor(fixtures: HealthFixture[]): Promise<Map<number, Policy>> {
-	const byKey = new Map<string, { subject: PolicySubject; ids: number[] }>();
-	for (const f of fixtures) {
-		const subject: PolicySubject = {
-			type: f.type,
-			policyId: f.policyId,
-			policyOverrides: f.policyOverrides,
-			repeatabilitySpec_um: f.repeatabilitySpec_um,
-			ratedLifeCycles: f.ratedLifeCycles
-		};
-		const key = canonicalJson(subject);
-		const entry = byKey.get(key);
-		if (entry) entry.ids.push(f.id);
-		else byKey.set(key, { subject, ids: [f.id] });
-	}
-	const out = new Map<number, Policy>();
-	for (const { subject, ids } of byKey.values()) {
-		const entries = await effectivePolicy(subject);
-		const policy = Object.fromEntries(entries.map((e) => [e.field, e.value])) as unknown as Policy;
-		for (const id of ids) out.set(id, policy);
-	}
-	return out;
+	return rows.map(toHealthFixture);
 }
 
 /** The histories of some fixtures in folding order. */
@@ -118,45 +79,6 @@ async function loadHistories(
 	return out;
 }
 
-interface StoredFlag {
-	id: number;
-	kind: Flag['kind'];
-	reason: string;
-	figures: Flag['figures'] | null;
-}
-
-/** State rows and open flags of some fixtures, optionally locked (FOR UPDATE, id order). */
-async function loadStates(
-	conn: PoolConnection,
-	ids: number[],
-	lock: boolean
-): Promise<Map<number, { state: FixtureState | null; open: StoredFlag[] }>> {
-	const out = new Map<number, { state: FixtureState | null; open: StoredFlag[] }>(
-		ids.map((id) => [id, { state: null, open: [] }])
-	);
-	if (!ids.length) return out;
-	const [states] = await conn.query<RowDataPacket[]>(
-		`SELECT fixture_id, data FROM fixture_state WHERE fixture_id IN (?) ORDER BY fixture_id
-		 ${lock ? 'FOR UPDATE' : ''}`,
-		[ids]
-	);
-	for (const r of states) out.get(r.fixture_id)!.state = parseJson<FixtureState>(r.data);
-	const [flags] = await conn.query<RowDataPacket[]>(
-		`SELECT id, fixture_id, kind, reason, figures FROM flags
-		  WHERE fixture_id IN (?) AND cleared_at IS NULL`,
-		[ids]
-	);
-	for (const r of flags) {
-		out.get(r.fixture_id)!.open.push({
-			id: r.id,
-			kind: r.kind,
-			reason: r.reason,
-			figures: parseJson(r.figures)
-		});
-	}
-	return out;
-}
-
 /** What re-evaluating one fixture's flags changed. */
 export interface FlagChange {
 	fixtureId: number;
@@ -165,47 +87,13 @@ export interface FlagChange {
 	updated: Flag['kind'][];
 }
 
-/**
- * Brings a fixture's open flags in line with `wanted` (only the kinds in `kinds`, all when
- * omitted): new kinds are raised, missing ones cleared, changed reasons or figures updated.
- */
-async function writeFlagDiff(
-	conn: PoolConnection,
-	fixtureId: number,
-	open: StoredFlag[],
-	wanted: Flag[],
-	now: Date,
-	kinds?: readonly Flag['kind'][]
-): Promise<FlagChange> {
-	const change: FlagChange = { fixtureId, raised: [], cleared: [], updated: [] };
-	const inScope = (k: Flag['kind']) => !kinds || kinds.includes(k);
-	const openByKind = new Map(open.filter((f) => inScope(f.kind)).map((f) => [f.kind, f]));
-	for (const flag of wanted.filter((f) => inScope(f.kind))) {
-		const o = openByKind.get(flag.kind);
-		openByKind.delete(flag.kind);
-		if (!o) {
-			await conn.query(
-				`INSERT INTO flags (fixture_id, kind, reason, figures, raised_at) VALUES (?, ?, ?, ?, ?)`,
-				[fixtureId, flag.kind, flag.reason, JSON.stringify(flag.figures), now]
-			);
-			change.raised.push(flag.kind);
-		} else if (
-			o.reason !== flag.reason ||
-			canonicalJson(o.figures ?? {}) !== canonicalJson(flag.figures)
-		) {
-			await conn.query('UPDATE flags SET reason = ?, figures = ? WHERE id = ?', [
-				flag.reason,
-				JSON.stringify(flag.figures),
-				o.id
-			]);
-			change.updated.push(flag.kind);
-		}
-	}
-	for (const o of openByKind.values()) {
-		await conn.query('UPDATE flags SET cleared_at = ? WHERE id = ?', [now, o.id]);
-		change.cleared.push(o.kind);
-	}
-	return change;
+function flagChange(fixtureId: number, diff: ReturnType<typeof diffFlags>): FlagChange {
+	return {
+		fixtureId,
+		raised: diff.raise.map((f) => f.kind),
+		cleared: diff.clear.map((f) => f.kind),
+		updated: diff.update.map((u) => u.flag.kind)
+	};
 }
 
 async function inTransaction<T>(fn: (conn: PoolConnection) => Promise<T>): Promise<T> {
@@ -256,16 +144,18 @@ export async function reevaluateFlags(
 		const fixtures = await loadHealthFixtures(chunk);
 		const policies = await policiesFor(fixtures);
 		await inTransaction(async (conn) => {
-			const stored = await loadStates(conn, chunk, true);
+			const stored = await loadStoredStates(conn, chunk, true);
+			const writes = [];
 			for (const f of fixtures) {
-				const { state, open } = stored.get(f.id)!;
-				if (!state) continue;
-				const wanted = evaluateFlags(state, policies.get(f.id)!, now);
-				const change = await writeFlagDiff(conn, f.id, open, wanted, now, options.kinds);
-				if (change.raised.length || change.cleared.length || change.updated.length) {
-					changes.push(change);
-				}
+				const entry = stored.get(f.id);
+				if (!entry) continue;
+				const wanted = evaluateFlags(entry.state, policies.get(f.id)!, now);
+				const diff = diffFlags(entry.openFlags, wanted, options.kinds);
+				if (!diff.raise.length && !diff.update.length && !diff.clear.length) continue;
+				changes.push(flagChange(f.id, diff));
+				writes.push(...flagRows(f.id, diff, now));
 			}
+			await writeFlags(conn, writes);
 		});
 	}
 	return changes;
@@ -331,12 +221,12 @@ export async function rebuildStates(
 		const policies = await policiesFor(fixtures);
 		const ids = fixtures.map((f) => f.id);
 		await inTransaction(async (conn) => {
-			const stored = await loadStates(conn, ids, !!options.fix);
+			const stored = await loadStoredStates(conn, ids, !!options.fix);
 			const histories = await loadHistories(conn, ids);
 			const toWrite: { f: HealthFixture; state: FixtureState }[] = [];
 			for (const f of fixtures) {
 				const history = histories.get(f.id)!;
-				const { state } = stored.get(f.id)!;
+				const state = stored.get(f.id)?.state ?? null;
 				report.checked++;
 				// No events and no state: nothing was ever folded, nothing to compare.
 				if (!history.length && !state) continue;
@@ -349,26 +239,16 @@ export async function rebuildStates(
 				toWrite.push({ f, state: rebuilt });
 			}
 			if (!options.fix || !toWrite.length) return;
-			await conn.query(
-				`INSERT INTO fixture_state (fixture_id, data, event_count, total_cycles,
-				   cycles_since_cleaning, cycles_since_inspection, cycles_since_part_swap,
-				   repeatability_um, wear_grade, last_event_at, last_cleaning_at, last_inspection_at,
-				   updated_at)
-				 VALUES ?
-				 ON DUPLICATE KEY UPDATE data = VALUES(data), event_count = VALUES(event_count),
-				   total_cycles = VALUES(total_cycles),
-				   cycles_since_cleaning = VALUES(cycles_since_cleaning),
-				   cycles_since_inspection = VALUES(cycles_since_inspection),
-				   cycles_since_part_swap = VALUES(cycles_since_part_swap),
-				   repeatability_um = VALUES(repeatability_um), wear_grade = VALUES(wear_grade),
-				   last_event_at = VALUES(last_event_at), last_cleaning_at = VALUES(last_cleaning_at),
-				   last_inspection_at = VALUES(last_inspection_at), updated_at = VALUES(updated_at)`,
-				[toWrite.map(({ f, state }) => stateColumns(f.id, state, now))]
+			await upsertStates(
+				conn,
+				toWrite.map(({ f, state }) => ({ fixtureId: f.id, state })),
+				now
 			);
-			for (const { f, state } of toWrite) {
+			const writes = toWrite.flatMap(({ f, state }) => {
 				const wanted = evaluateFlags(state, policies.get(f.id)!, now);
-				await writeFlagDiff(conn, f.id, stored.get(f.id)!.open, wanted, now);
-			}
+				return flagRows(f.id, diffFlags(stored.get(f.id)?.openFlags ?? [], wanted), now);
+			});
+			await writeFlags(conn, writes);
 		});
 	}
 	return report;

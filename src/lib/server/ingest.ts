@@ -39,12 +39,9 @@ import {
 	applyEvent,
 	compareEvents,
 	evaluateFlags,
-	initialState,
-	recentRepeatability,
 	recompute,
 	type Flag,
-	type FixtureState,
-	type InitialStateOptions
+	type FixtureState
 } from '../domain/health';
 import type { Policy } from '../domain/policy';
 import {
@@ -57,12 +54,25 @@ import {
 	type FixtureEvent,
 	type SyncEvent
 } from '../schemas/events';
-import type { FixtureType } from '../schemas/fixture';
 import { ROLES, type Role } from '../schemas/roles';
 import { getPool } from './db';
 import { canonicalJson } from './fixtures';
 import type { Actor } from './guard';
-import { effectivePolicy, type PolicySubject } from './policies';
+import {
+	diffFlags,
+	flagRows,
+	HEALTH_FIXTURE_COLUMNS,
+	initialStateFor,
+	initialStateOptions,
+	loadStoredStates,
+	parseJson,
+	policiesFor,
+	toHealthFixture,
+	upsertStates,
+	writeFlags,
+	type FlagRow,
+	type HealthFixture
+} from './state-store';
 
 /** Largest sync request body accepted (declared and actually read). */
 export const SYNC_BODY_LIMIT_BYTES = 2 * 1024 * 1024;
@@ -72,6 +82,8 @@ export const FUTURE_TOLERANCE_MS = 10 * 60 * 1000;
 const TRANSACTION_ATTEMPTS = 4;
 
 export { MAX_EVENTS_PER_SYNC };
+// Where fold starts are defined; re-exported for the callers and tests that import them from here.
+export { initialStateFor, initialStateOptions };
 
 /** The answer for one event of a batch. */
 export interface SyncResult {
@@ -184,26 +196,7 @@ export function contentHash(e: Pick<SyncEvent, 'fixtureCode' | 'kind' | 'occurre
 }
 
 /** What ingest needs to know about a fixture. */
-interface FixtureRow extends PolicySubject {
-	id: number;
-	code: string;
-	status: string;
-	commissionedOn: string | null;
-}
-
-/**
- * How a fixture's state starts before its first event: from its commissioning date when known, and
- * needing a break-in (the domain's default for a fixture new to the register). The rebuild must
- * start from the same, or it would not reproduce the stored state.
- */
-export function initialStateOptions(f: { commissionedOn: string | null }): InitialStateOptions {
-	return { since: f.commissionedOn ? `${f.commissionedOn}T00:00:00.000Z` : null };
-}
-
-/** The state a fixture starts from before its first event (see initialStateOptions). */
-export function initialStateFor(f: { commissionedOn: string | null }): FixtureState {
-	return initialState(initialStateOptions(f));
-}
+type FixtureRow = HealthFixture;
 
 /** One event of the batch on its way through ingest. */
 interface Item {
@@ -313,59 +306,11 @@ async function lookUpFixtures(
 	const map = new Map<string, FixtureRow>();
 	if (!codes.size) return map;
 	const [rows] = await conn.query<RowDataPacket[]>(
-		`SELECT id, code, type, status, policy_id, policy_overrides, repeatability_spec_um,
-		        rated_life_cycles, DATE_FORMAT(commissioned_on, '%Y-%m-%d') AS commissioned_on
-		   FROM fixtures WHERE code IN (?)`,
+		`SELECT ${HEALTH_FIXTURE_COLUMNS} FROM fixtures WHERE code IN (?)`,
 		[[...codes]]
 	);
-	for (const r of rows) {
-		map.set(r.code, {
-			id: r.id,
-			code: r.code,
-			type: r.type as FixtureType,
-			status: r.status,
-			policyId: r.policy_id,
-			policyOverrides: parseJson(r.policy_overrides),
-			repeatabilitySpec_um: r.repeatability_spec_um,
-			ratedLifeCycles: r.rated_life_cycles,
-			commissionedOn: r.commissioned_on
-		});
-	}
+	for (const r of rows) map.set(r.code, toHealthFixture(r));
 	return map;
-}
-
-function parseJson<T>(value: unknown): T | null {
-	if (value === null || value === undefined) return null;
-	return (typeof value === 'string' ? JSON.parse(value) : value) as T;
-}
-
-/** The effective policy of each fixture, asked once per distinct set of policy inputs. */
-async function policiesFor(fixtures: Set<FixtureRow>): Promise<Map<number, Policy>> {
-	const byKey = new Map<string, { subject: PolicySubject; ids: number[] }>();
-	for (const f of fixtures) {
-		const subject: PolicySubject = {
-			type: f.type,
-			policyId: f.policyId,
-			policyOverrides: f.policyOverrides,
-			repeatabilitySpec_um: f.repeatabilitySpec_um,
-			ratedLifeCycles: f.ratedLifeCycles
-		};
-		const key = canonicalJson(subject);
-		const entry = byKey.get(key);
-		if (entry) entry.ids.push(f.id);
-		else byKey.set(key, { subject, ids: [f.id] });
-	}
-	const out = new Map<number, Policy>();
-	await Promise.all(
-		[...byKey.values()].map(async ({ subject, ids }) => {
-			const entries = await effectivePolicy(subject);
-			const policy = Object.fromEntries(
-				entries.map((e) => [e.field, e.value])
-			) as unknown as Policy;
-			for (const id of ids) out.set(id, policy);
-		})
-	);
-	return out;
 }
 
 /** Judges an event that is not stored yet; undefined when it may be accepted. */
@@ -533,18 +478,6 @@ interface StateRow {
 	fixture: FixtureRow;
 }
 
-interface OpenFlag {
-	id: number | null;
-	fixtureId: number;
-	kind: Flag['kind'];
-	reason: string;
-	figures: Flag['figures'];
-	raisedAt: Date;
-	raisedByEventId: string | null;
-	clearedAt: Date | null;
-	clearedByEventId: string | null;
-}
-
 async function storeAndFold(
 	conn: PoolConnection,
 	actor: Actor,
@@ -556,14 +489,14 @@ async function storeAndFold(
 	const lockIds = [...new Set(candidates.map((i) => i.fixture!.id))].sort((a, b) => a - b);
 
 	// Lock the states first, in id order; a fixture without a state row gets one, then the lock.
-	const locked = await lockStates(conn, lockIds);
+	const locked = await loadStoredStates(conn, lockIds, true);
 	const missing = lockIds.filter((id) => !locked.has(id));
 	if (missing.length) {
 		const fixtureOf = new Map(candidates.map((i) => [i.fixture!.id, i.fixture!]));
 		await conn.query('INSERT IGNORE INTO fixture_state (fixture_id, data, updated_at) VALUES ?', [
 			missing.map((id) => [id, JSON.stringify(initialStateFor(fixtureOf.get(id)!)), now])
 		]);
-		for (const [id, entry] of await lockStates(conn, missing)) locked.set(id, entry);
+		for (const [id, entry] of await loadStoredStates(conn, missing, true)) locked.set(id, entry);
 	}
 
 	const fresh = await insertNew(conn, actor, deviceId, candidates, now);
@@ -581,7 +514,7 @@ async function storeAndFold(
 		row.newEvents.push(item);
 	}
 	const fixtureIds = [...byFixture.keys()].sort((a, b) => a - b);
-	const flagWrites: OpenFlag[] = [];
+	const flagWrites: FlagRow[] = [];
 
 	for (const id of fixtureIds) {
 		const row = byFixture.get(id)!;
@@ -628,95 +561,21 @@ async function storeAndFold(
 			return events[lo - 1].id;
 		};
 
-		const open = new Map<Flag['kind'], OpenFlag>();
-		for (const f of locked.get(id)!.openFlags) open.set(f.kind, f);
-		for (const flag of final) {
-			const o = open.get(flag.kind);
-			if (!o) {
-				flagWrites.push({
-					id: null,
-					fixtureId: id,
-					kind: flag.kind,
-					reason: flag.reason,
-					figures: flag.figures,
-					raisedAt: now,
-					raisedByEventId: culprit(flag.kind, true),
-					clearedAt: null,
-					clearedByEventId: null
-				});
-			} else if (
-				o.reason !== flag.reason ||
-				canonicalJson(o.figures) !== canonicalJson(flag.figures)
-			) {
-				flagWrites.push({ ...o, reason: flag.reason, figures: flag.figures });
-			}
-			open.delete(flag.kind);
-		}
-		for (const o of open.values()) {
-			flagWrites.push({ ...o, clearedAt: now, clearedByEventId: culprit(o.kind, false) });
-		}
+		const diff = diffFlags(locked.get(id)!.openFlags, final);
+		flagWrites.push(...flagRows(id, diff, now, culprit));
 	}
 
-	await upsertStates(conn, [...byFixture.values()], now);
-	if (flagWrites.length) await writeFlags(conn, flagWrites);
+	await upsertStates(
+		conn,
+		[...byFixture.values()].map((r) => ({ fixtureId: r.fixture.id, state: r.state })),
+		now
+	);
+	await writeFlags(conn, flagWrites);
 	await syncFixtureStatus(conn, [...byFixture.values()]);
 }
 
 function toFixtureEvent(e: SyncEvent): FixtureEvent {
 	return { id: e.id, kind: e.kind, occurredAt: e.occurredAt, payload: e.payload } as FixtureEvent;
-}
-
-/** A locked state row and the fixture's open flags. */
-interface Locked {
-	state: FixtureState;
-	openFlags: OpenFlag[];
-}
-
-/**
- * Locks the fixtures' state rows (in id order) and reads them with their open flags, in one
- * statement: the flags come along as a JSON array per fixture.
- */
-async function lockStates(conn: PoolConnection, ids: number[]): Promise<Map<number, Locked>> {
-	const [rows] = await conn.query<RowDataPacket[]>(
-		`SELECT s.fixture_id, s.data,
-		   (SELECT JSON_ARRAYAGG(JSON_OBJECT('id', f.id, 'kind', f.kind, 'reason', f.reason,
-		      'figures', JSON_QUERY(COALESCE(f.figures, '{}'), '$'), 'raisedAt', f.raised_at,
-		      'raisedBy', f.raised_by_event_id))
-		      FROM flags f WHERE f.fixture_id = s.fixture_id AND f.cleared_at IS NULL) AS open_flags
-		 FROM fixture_state s WHERE s.fixture_id IN (?) ORDER BY s.fixture_id FOR UPDATE`,
-		[ids]
-	);
-	const out = new Map<number, Locked>();
-	for (const r of rows) {
-		const fixtureId = r.fixture_id as number;
-		const flags =
-			parseJson<
-				{
-					id: number;
-					kind: Flag['kind'];
-					reason: string;
-					figures: Flag['figures'];
-					raisedAt: string;
-					raisedBy: string | null;
-				}[]
-			>(r.open_flags) ?? [];
-		out.set(fixtureId, {
-			state: parseJson<FixtureState>(r.data)!,
-			openFlags: flags.map((f) => ({
-				id: f.id,
-				fixtureId,
-				kind: f.kind,
-				reason: f.reason,
-				figures: f.figures,
-				// DATETIME text from the database, in UTC.
-				raisedAt: new Date(`${f.raisedAt.replace(' ', 'T')}Z`),
-				raisedByEventId: f.raisedBy,
-				clearedAt: null,
-				clearedByEventId: null
-			}))
-		});
-	}
-	return out;
 }
 
 /** A fixture's whole history in folding order (this transaction's inserts included). */
@@ -736,68 +595,6 @@ async function loadHistory(conn: PoolConnection, fixtureId: number): Promise<Fix
 	);
 	// The database's collation orders ids case-insensitively; the fold order is the domain's.
 	return events.sort(compareEvents);
-}
-
-const isoToDate = (iso: string | null) => (iso === null ? null : new Date(iso));
-
-async function upsertStates(conn: PoolConnection, rows: StateRow[], now: Date): Promise<void> {
-	await conn.query(
-		`INSERT INTO fixture_state (fixture_id, data, event_count, total_cycles, cycles_since_cleaning,
-		   cycles_since_inspection, cycles_since_part_swap, repeatability_um, wear_grade,
-		   last_event_at, last_cleaning_at, last_inspection_at, updated_at)
-		 VALUES ?
-		 ON DUPLICATE KEY UPDATE data = VALUES(data), event_count = VALUES(event_count),
-		   total_cycles = VALUES(total_cycles), cycles_since_cleaning = VALUES(cycles_since_cleaning),
-		   cycles_since_inspection = VALUES(cycles_since_inspection),
-		   cycles_since_part_swap = VALUES(cycles_since_part_swap),
-		   repeatability_um = VALUES(repeatability_um), wear_grade = VALUES(wear_grade),
-		   last_event_at = VALUES(last_event_at), last_cleaning_at = VALUES(last_cleaning_at),
-		   last_inspection_at = VALUES(last_inspection_at), updated_at = VALUES(updated_at)`,
-		[rows.map((r) => stateColumns(r.fixture.id, r.state, now))]
-	);
-}
-
-/** The fixture_state row for a state: the JSON and the columns copied out for filtering. */
-export function stateColumns(fixtureId: number, s: FixtureState, now: Date): unknown[] {
-	return [
-		fixtureId,
-		JSON.stringify(s),
-		s.eventCount,
-		s.totalCycles,
-		s.cyclesSinceCleaning,
-		s.cyclesSinceInspection,
-		s.cyclesSincePartSwap,
-		recentRepeatability(s)?.R ?? null,
-		s.wear.grade,
-		isoToDate(s.lastEventAt),
-		isoToDate(s.lastCleaningAt),
-		isoToDate(s.lastInspectionAt),
-		now
-	];
-}
-
-/** Raises, updates and clears flags in one statement (new rows have no id yet). */
-async function writeFlags(conn: PoolConnection, flags: OpenFlag[]): Promise<void> {
-	await conn.query(
-		`INSERT INTO flags (id, fixture_id, kind, reason, figures, raised_at, raised_by_event_id,
-		   cleared_at, cleared_by_event_id)
-		 VALUES ?
-		 ON DUPLICATE KEY UPDATE reason = VALUES(reason), figures = VALUES(figures),
-		   cleared_at = VALUES(cleared_at), cleared_by_event_id = VALUES(cleared_by_event_id)`,
-		[
-			flags.map((f) => [
-				f.id,
-				f.fixtureId,
-				f.kind,
-				f.reason,
-				JSON.stringify(f.figures),
-				f.raisedAt,
-				f.raisedByEventId,
-				f.clearedAt,
-				f.clearedByEventId
-			])
-		]
-	);
 }
 
 /**
