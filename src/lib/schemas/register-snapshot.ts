@@ -8,15 +8,23 @@ export const snapshotFlagSchema = z.object({
 	raisedAt: z.string()
 });
 
-/** The policy figures the fixture card shows (already resolved: fixture → class → type default). */
+/**
+ * The fixture's effective health policy, every field, resolved on the server exactly as its health
+ * rules resolve it (fixture → class → type → default); null where a rule is switched off.
+ */
 export const snapshotPolicySchema = z.object({
 	repeatabilitySpec_um: z.number().nullable(),
-	ratedLifeCycles: z.number().int().nullable(),
+	repeatabilityWindow: z.number().int().nullable(),
 	breakInMinCycles: z.number().int().nullable(),
+	settleWindow: z.number().int().nullable(),
+	settleTolerance_um: z.number().nullable(),
 	cleaningIntervalCycles: z.number().int().nullable(),
 	cleaningIntervalDays: z.number().int().nullable(),
 	inspectionIntervalCycles: z.number().int().nullable(),
-	inspectionIntervalDays: z.number().int().nullable()
+	inspectionIntervalDays: z.number().int().nullable(),
+	ratedLifeCycles: z.number().int().nullable(),
+	wearLimitGrade: z.number().int().nullable(),
+	forecastHorizonCycles: z.number().int().nullable()
 });
 
 /** Counters the server derived from the log, as of the snapshot. */

@@ -45,7 +45,7 @@ export interface EffectivePolicyEntry {
 	note: PolicySource | null;
 }
 
-function pickPolicy(row: typeof policies.$inferSelect): Policy {
+function pickPolicy(row: PolicyRow): Policy {
 	return Object.fromEntries(FIELDS.map((f) => [f, row[f]])) as unknown as Policy;
 }
 
@@ -58,16 +58,30 @@ export interface PolicySubject {
 	ratedLifeCycles: number | null;
 }
 
-/** The effective policy of a fixture, value by value, with each value's source. */
-export async function effectivePolicy(f: PolicySubject): Promise<EffectivePolicyEntry[]> {
-	const rows = await db
-		.select()
-		.from(policies)
-		.where(
-			or(eq(policies.fixtureType, f.type), f.policyId ? eq(policies.id, f.policyId) : undefined)
-		);
-	const classRow = f.policyId ? rows.find((r) => r.id === f.policyId) : undefined;
-	const typeRow = rows.find((r) => r.fixtureType === f.type);
+/** The policy rows that may bear on fixtures: by id (classes) and by fixture type. */
+export interface PolicyRows {
+	byId: ReadonlyMap<number, PolicyRow>;
+	byType: ReadonlyMap<string, PolicyRow>;
+}
+
+type PolicyRow = typeof policies.$inferSelect;
+
+/** Indexes policy rows for resolvePolicy. */
+export function indexPolicyRows(rows: readonly PolicyRow[]): PolicyRows {
+	return {
+		byId: new Map(rows.map((r) => [r.id, r])),
+		byType: new Map(rows.filter((r) => r.fixtureType).map((r) => [r.fixtureType!, r]))
+	};
+}
+
+/**
+ * Resolves a fixture's effective policy from rows already read, value by value with its source.
+ * The one place the order of precedence lives: the server's health rules and the phone's copy of
+ * the register both come from here, so they cannot disagree.
+ */
+export function resolvePolicy(f: PolicySubject, rows: PolicyRows): EffectivePolicyEntry[] {
+	const classRow = f.policyId ? rows.byId.get(f.policyId) : undefined;
+	const typeRow = rows.byType.get(f.type);
 
 	let base: Policy;
 	let source: EffectivePolicyEntry['source'];
@@ -96,6 +110,22 @@ export async function effectivePolicy(f: PolicySubject): Promise<EffectivePolicy
 			note: !fromFixture && source.kind === 'default' ? POLICY_SOURCES[field] : null
 		};
 	});
+}
+
+/** The values of resolved entries as a Policy (null where a rule is switched off). */
+export function policyValues(entries: readonly EffectivePolicyEntry[]): Policy {
+	return Object.fromEntries(entries.map((e) => [e.field, e.value])) as unknown as Policy;
+}
+
+/** The effective policy of a fixture, value by value, with each value's source. */
+export async function effectivePolicy(f: PolicySubject): Promise<EffectivePolicyEntry[]> {
+	const rows = await db
+		.select()
+		.from(policies)
+		.where(
+			or(eq(policies.fixtureType, f.type), f.policyId ? eq(policies.id, f.policyId) : undefined)
+		);
+	return resolvePolicy(f, indexPolicyRows(rows));
 }
 
 /**

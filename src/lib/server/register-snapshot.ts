@@ -1,8 +1,8 @@
 import { createHash } from 'node:crypto';
 import { asc, eq, isNull } from 'drizzle-orm';
-import { DEFAULT_POLICY } from '$lib/domain/policy';
 import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
 import type { Actor } from './guard';
+import { indexPolicyRows, policyValues, resolvePolicy } from './policies';
 import { db, schema } from './db';
 
 /*
@@ -13,48 +13,7 @@ import { db, schema } from './db';
 
 const { fixtures, locations, areas, sites, fixtureState, flags, policies } = schema;
 
-type PolicyRow = typeof policies.$inferSelect;
 type PolicyFigures = SnapshotFixture['policy'];
-const POLICY_FIELDS = [
-	'repeatabilitySpec_um',
-	'ratedLifeCycles',
-	'breakInMinCycles',
-	'cleaningIntervalCycles',
-	'cleaningIntervalDays',
-	'inspectionIntervalCycles',
-	'inspectionIntervalDays'
-] as const satisfies readonly (keyof PolicyFigures)[];
-
-/**
- * Resolves the figures the card shows, most specific first: the fixture's own columns, its
- * per-field overrides, its policy class, its type's policy, then Nestmark's built-in default.
- */
-function resolvePolicy(
-	fixture: {
-		repeatabilitySpec_um: number | null;
-		ratedLifeCycles: number | null;
-		policyOverrides: Record<string, number | null> | null;
-	},
-	policy: PolicyRow | undefined
-): PolicyFigures {
-	const out = {} as PolicyFigures;
-	for (const field of POLICY_FIELDS) {
-		const own =
-			field === 'repeatabilitySpec_um'
-				? fixture.repeatabilitySpec_um
-				: field === 'ratedLifeCycles'
-					? fixture.ratedLifeCycles
-					: null;
-		const override = fixture.policyOverrides?.[field];
-		out[field] =
-			own ??
-			(typeof override === 'number' ? override : null) ??
-			policy?.[field] ??
-			DEFAULT_POLICY[field] ??
-			null;
-	}
-	return out;
-}
 
 const iso = (d: Date | null | undefined) => (d ? d.toISOString() : null);
 
@@ -91,8 +50,7 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 			.orderBy(asc(flags.raisedAt), asc(flags.id))
 	]);
 
-	const byId = new Map(policyRows.map((p) => [p.id, p]));
-	const byType = new Map(policyRows.filter((p) => p.fixtureType).map((p) => [p.fixtureType, p]));
+	const policyIndex = indexPolicyRows(policyRows);
 	const flagsOf = new Map<number, SnapshotFixture['flags']>();
 	for (const fl of openFlags) {
 		const list = flagsOf.get(fl.fixtureId) ?? [];
@@ -108,7 +66,9 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 		location: { site, area, name: location },
 		flags: flagsOf.get(f.id) ?? [],
 		mass_kg: f.mass_kg,
-		policy: resolvePolicy(f, (f.policyId ? byId.get(f.policyId) : undefined) ?? byType.get(f.type)),
+		// Resolved exactly as the server's health rules resolve it, so the card's figures (and any
+		// verdict the phone works out offline) agree with the server's.
+		policy: policyValues(resolvePolicy(f, policyIndex)) as PolicyFigures,
 		state: {
 			totalCycles: state?.totalCycles ?? 0,
 			cyclesSinceCleaning: state?.cyclesSinceCleaning ?? 0,

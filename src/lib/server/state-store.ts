@@ -15,7 +15,7 @@ import {
 import type { Policy } from '../domain/policy';
 import type { FixtureType } from '../schemas/fixture';
 import { canonicalJson } from './fixtures';
-import { effectivePolicy, type PolicySubject } from './policies';
+import { effectivePolicy, policyValues, type PolicySubject } from './policies';
 
 /** What folding and flagging need to know about a fixture. */
 export interface HealthFixture extends PolicySubject {
@@ -70,10 +70,7 @@ export async function policiesFor(fixtures: Iterable<HealthFixture>): Promise<Ma
 	const out = new Map<number, Policy>();
 	await Promise.all(
 		[...byKey.values()].map(async ({ subject, ids }) => {
-			const entries = await effectivePolicy(subject);
-			const policy = Object.fromEntries(
-				entries.map((e) => [e.field, e.value])
-			) as unknown as Policy;
+			const policy = policyValues(await effectivePolicy(subject));
 			for (const id of ids) out.set(id, policy);
 		})
 	);

@@ -4,6 +4,7 @@ import { generateFixtureCode } from '$lib/domain/fixture-code';
 import { DEFAULT_POLICY } from '$lib/domain/policy';
 import { registerSnapshotSchema } from '$lib/schemas/register-snapshot';
 import type { Actor } from '$lib/server/guard';
+import { effectivePolicy, policyValues } from '$lib/server/policies';
 import { etagMatches } from '$lib/server/register-snapshot';
 import { GET } from '../../../src/routes/api/register-snapshot/+server';
 import {
@@ -78,6 +79,39 @@ describe('GET /api/register-snapshot', () => {
 		expect(p.state.totalCycles).toBe(0);
 		expect(res.headers.get('etag')).toBe(`"${body.version}"`);
 		expect(res.headers.get('cache-control')).toContain('no-cache');
+	});
+
+	it('carries the same effective policy the server folds with, switched-off rules included', async () => {
+		// A type policy for pallets with its own break-in length, and a fixture that switches the
+		// calendar cleaning rule off (null override): both must reach the phone as the server sees them.
+		await db.insert(schema.policies).values({
+			name: 'Pallets (test)',
+			fixtureType: 'pallet',
+			...DEFAULT_POLICY,
+			breakInMinCycles: 24
+		});
+		const quiet = await makeFixture({
+			type: 'pallet',
+			policyOverrides: { cleaningIntervalDays: null, settleWindow: 8 }
+		});
+		const res = await get(operator, `?code=${quiet.code}`);
+		const body = registerSnapshotSchema.parse(await res.json());
+		const server = policyValues(
+			await effectivePolicy({
+				type: 'pallet',
+				policyId: null,
+				policyOverrides: { cleaningIntervalDays: null, settleWindow: 8 },
+				repeatabilitySpec_um: null,
+				ratedLifeCycles: null
+			})
+		);
+		expect(body.fixtures[0].policy).toEqual(server);
+		expect(body.fixtures[0].policy).toMatchObject({
+			breakInMinCycles: 24,
+			settleWindow: 8,
+			cleaningIntervalDays: null
+		});
+		await db.delete(schema.policies).where(eq(schema.policies.name, 'Pallets (test)'));
 	});
 
 	it('answers 304 to its own ETag, and a new ETag once the register changes', async () => {
