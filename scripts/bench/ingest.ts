@@ -1,6 +1,8 @@
 /**
  * Sync ingest benchmark: events per second through `POST /api/sync` of the built app, against the
- * same rows written by raw mysql2 multi-row `INSERT IGNORE` in the same run.
+ * same rows written by raw mysql2 multi-row `INSERT IGNORE` in the same run. In between, the same
+ * events through the ingest service in process, to show what the web layer (HTTP, session) adds.
+ * Ingest always runs the health rules (state fold and flags), so every figure includes them.
  *
  * Everything happens in a scratch database (`nestmark_bench`), recreated on every run and dropped
  * at the end (BENCH_KEEP_DB=1 keeps it for a look); the development and test databases are never
@@ -285,6 +287,51 @@ async function apiIngest(streams: SyncEvent[][], cookie: string, serverPid: numb
 	return { ms, accepted, problems, cpu: cpu.filter(Boolean).join(', ') };
 }
 
+/**
+ * The same events through the ingest service called in this process (no HTTP, no session): the
+ * cost of judging, storing and folding with the health rules on, apart from the web layer. The
+ * tables it fills are emptied again afterwards, so the API run starts from the same state.
+ */
+async function directIngest(url: string, streams: SyncEvent[][], userId: string) {
+	process.env.DATABASE_URL = url;
+	const { ingestBatch } = await import('../../src/lib/server/ingest.ts');
+	const { closeDb } = await import('../../src/lib/server/db/index.ts');
+	const actor = { id: userId, email: EMAIL, name: 'Bench', roles: ['technician' as const] };
+	const conn = await mysql.createConnection({ uri: url });
+	const [statuses] = await conn.query<mysql.RowDataPacket[]>('SELECT id, status FROM fixtures');
+	const db0 = cpuSeconds(mariadbPid());
+	const cpu0 = process.cpuUsage();
+	const t0 = performance.now();
+	let accepted = 0;
+	try {
+		await inParallel(
+			streams.map((events) => batches(events, BATCH)),
+			async (batch, worker) => {
+				const results = await ingestBatch(actor, `bench-direct-${worker}`, batch);
+				accepted += results.filter((r) => r.status === 'accepted').length;
+			}
+		);
+		const ms = performance.now() - t0;
+		const cpu = process.cpuUsage(cpu0);
+		const db1 = cpuSeconds(mariadbPid());
+		const appMs = (((cpu.user + cpu.system) / 1000) * 100) / TOTAL_EVENTS;
+		const note = [`ingest ${appMs.toFixed(1)} ms`, cpuNote('MariaDB', db0, db1, TOTAL_EVENTS)]
+			.filter(Boolean)
+			.join(', ');
+		return { ms, accepted, cpu: note };
+	} finally {
+		await closeDb();
+		// Back to the state before: no events, no derived state, the fixtures' first status.
+		await conn.query('DELETE FROM flags');
+		await conn.query('DELETE FROM fixture_state');
+		await conn.query('DELETE FROM events');
+		for (const r of statuses) {
+			await conn.query('UPDATE fixtures SET status = ? WHERE id = ?', [r.status, r.id]);
+		}
+		await conn.end();
+	}
+}
+
 /** Runs the ingest benchmark and prints both rates and their ratio. */
 export async function benchIngest(): Promise<{ apiRate: number; rawRate: number; ratio: number }> {
 	console.log(
@@ -310,6 +357,12 @@ export async function benchIngest(): Promise<{ apiRate: number; rawRate: number;
 		const rawRate = rate(TOTAL_EVENTS, raw.ms);
 		log(
 			`raw INSERT IGNORE:  ${fmt(rawRate)} events/s (${(raw.ms / 1000).toFixed(1)} s, ${fmt(raw.stored)} rows; CPU per 100 events: ${raw.cpu})`
+		);
+
+		const direct = await directIngest(url, streams, user.id as string);
+		const directRate = rate(TOTAL_EVENTS, direct.ms);
+		log(
+			`ingest, in process: ${fmt(directRate)} events/s (${(direct.ms / 1000).toFixed(1)} s, ${fmt(direct.accepted)} accepted; CPU per 100 events: ${direct.cpu}) — ratio ${(directRate / rawRate).toFixed(2)}, health rules on, no HTTP or session`
 		);
 
 		server = await startApp(PORT, url, { BODY_SIZE_LIMIT: '4M' });
