@@ -1,9 +1,12 @@
 import { createHash } from 'node:crypto';
 import { asc, eq, isNull } from 'drizzle-orm';
-import { DEFAULT_POLICY } from '$lib/domain/policy';
+import type { FixtureState } from '$lib/domain/health';
+import { DEFAULT_POLICY, type Policy } from '$lib/domain/policy';
 import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
 import type { Actor } from './guard';
 import { db, schema } from './db';
+import { policiesFor } from './health';
+import { initialStateFor } from './ingest';
 
 /*
  * The copy of the register a phone keeps for offline use: per fixture, what the card shows
@@ -100,6 +103,9 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 		flagsOf.set(fl.fixtureId, list);
 	}
 
+	// The settle rule exactly as ingest resolves the policy, so a phone's run verdict matches.
+	const rules = await policiesFor(rows.map(({ f }) => f));
+
 	return rows.map(({ f, site, area, location, state }) => ({
 		code: f.code,
 		name: f.name,
@@ -118,8 +124,31 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 			lastCleaningAt: iso(state?.lastCleaningAt),
 			lastInspectionAt: iso(state?.lastInspectionAt)
 		},
+		breakIn: breakInOf(f, state?.data as FixtureState | undefined, rules.get(f.id)!),
 		updatedAt: f.updatedAt.toISOString()
 	}));
+}
+
+/** The fixture's break-in progress (a fixture with no events yet starts as ingest would) and rule. */
+function breakInOf(
+	f: { commissionedOn: string | null },
+	state: FixtureState | undefined,
+	policy: Policy
+): NonNullable<SnapshotFixture['breakIn']> {
+	const b = state?.breakIn ?? initialStateFor(f).breakIn;
+	return {
+		required: b.required,
+		reason: b.reason,
+		cycles: b.cycles,
+		acc: b.acc,
+		windows: b.windows,
+		rule: {
+			repeatabilitySpec_um: policy.repeatabilitySpec_um,
+			breakInMinCycles: policy.breakInMinCycles,
+			settleWindow: policy.settleWindow,
+			settleTolerance_um: policy.settleTolerance_um
+		}
+	};
 }
 
 /** A strong ETag over the content: same entries, same tag, on any server. */
