@@ -3,6 +3,7 @@ import { describe, expect, it } from 'vitest';
 import type { FixtureEvent } from '../schemas/events';
 import {
 	type RunCycle,
+	countRefusal,
 	freshBreakIn,
 	rollingRepeatability,
 	runPayload,
@@ -183,5 +184,16 @@ describe('rollingRepeatability', () => {
 		expect(rollingRepeatability([{ dx: 1 }, { dy: 2 }, { dz: 3 }], 3)).toEqual([]);
 		expect(rollingRepeatability([{ dx: 1 }], 2)).toEqual([]);
 		expect(() => rollingRepeatability([], 1)).toThrow(/window: must be a whole number/);
+	});
+});
+
+describe('countRefusal', () => {
+	it('stops at the limits of one break-in event (events.ts)', () => {
+		expect(countRefusal([], true)).toBeNull();
+		const readings: RunCycle[] = Array.from({ length: 10_000 }, () => ({ dx: 0 }));
+		expect(countRefusal(readings, false)).toBeNull();
+		expect(countRefusal(readings, true)).toMatch(/10000 readings, the most one run can log/);
+		const cycles: RunCycle[] = Array.from({ length: 100_000 }, () => null);
+		expect(countRefusal(cycles, false)).toMatch(/100000 cycles, the most one run can log/);
 	});
 });

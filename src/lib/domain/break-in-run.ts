@@ -5,7 +5,11 @@
  * the same applyEvent the server uses, starting from the fixture's break-in progress as the
  * register snapshot carries it — so the phone and the server cannot disagree on the rule.
  */
-import type { EventPayloadInputs } from '../schemas/events';
+import {
+	type EventPayloadInputs,
+	MAX_CYCLES_PER_EVENT,
+	MAX_READINGS_PER_BREAK_IN
+} from '../schemas/events';
 import { DomainInputError } from './errors';
 import { type BreakInProgress, type WindowPoint, applyEvent, initialState } from './health';
 import { DEFAULT_POLICY, type Policy } from './policy';
@@ -170,4 +174,18 @@ export function rollingRepeatability(cycles: readonly RunCycle[], window: number
 		if (worst !== null) out.push({ cycle: slice[slice.length - 1].cycle, s: worst, R: 4 * worst });
 	}
 	return out;
+}
+
+/**
+ * Why one more cycle (with readings, or without) cannot join this run, or null when it can: one
+ * 'break-in' event holds at most MAX_CYCLES_PER_EVENT cycles and MAX_READINGS_PER_BREAK_IN readings.
+ */
+export function countRefusal(cycles: readonly RunCycle[], withReading: boolean): string | null {
+	if (cycles.length >= MAX_CYCLES_PER_EVENT) {
+		return `This run has ${MAX_CYCLES_PER_EVENT} cycles, the most one run can log: finish it and start another.`;
+	}
+	if (withReading && cycles.filter((c) => c !== null).length >= MAX_READINGS_PER_BREAK_IN) {
+		return `This run has ${MAX_READINGS_PER_BREAK_IN} readings, the most one run can log: count without readings, or finish it and start another.`;
+	}
+	return null;
 }
