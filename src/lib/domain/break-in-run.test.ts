@@ -5,6 +5,7 @@ import {
 	type RunCycle,
 	countRefusal,
 	freshBreakIn,
+	progressAfter,
 	rollingRepeatability,
 	runPayload,
 	runVerdict
@@ -195,5 +196,42 @@ describe('countRefusal', () => {
 		expect(countRefusal(readings, true)).toMatch(/10000 readings, the most one run can log/);
 		const cycles: RunCycle[] = Array.from({ length: 100_000 }, () => null);
 		expect(countRefusal(cycles, false)).toMatch(/100000 cycles, the most one run can log/);
+	});
+});
+
+describe('progressAfter', () => {
+	it('folds events not yet on the server into the progress, as the server will', () => {
+		const events: FixtureEvent[] = [
+			{
+				id: 'a',
+				kind: 'break-in',
+				occurredAt: '2025-01-01T00:00:00Z',
+				payload: runPayload(alternating(12, 0.1))
+			},
+			{ id: 'b', kind: 'reseat', occurredAt: '2025-01-01T01:00:00Z', payload: { cycles: 3 } }
+		];
+		const p = progressAfter(freshBreakIn(), rule, events);
+		const server = recompute(events, DEFAULT_POLICY).breakIn;
+		expect(p).toEqual({
+			required: true,
+			reason: 'new',
+			cycles: 15,
+			acc: server.acc,
+			windows: server.windows
+		});
+		expect(p.windows).toHaveLength(1);
+	});
+
+	it('starts a new requirement after a part swap logged on the device', () => {
+		const done = { ...freshBreakIn(), required: false, reason: 'new' as const, cycles: 30 };
+		const p = progressAfter(done, rule, [
+			{
+				id: 'c',
+				kind: 'part-swap',
+				occurredAt: '2025-02-01T00:00:00Z',
+				payload: { replaced: ['balls'] }
+			}
+		]);
+		expect(p).toMatchObject({ required: true, reason: 'part-swap', cycles: 0, windows: [] });
 	});
 });

@@ -7,6 +7,7 @@
  */
 import {
 	type EventPayloadInputs,
+	type FixtureEvent,
 	MAX_CYCLES_PER_EVENT,
 	MAX_READINGS_PER_BREAK_IN
 } from '../schemas/events';
@@ -80,6 +81,28 @@ function stateFrom(start: BreakInStart) {
 		windows: start.windows.slice()
 	};
 	return s;
+}
+
+/**
+ * The progress after events the server has not folded yet (this device's unsent outbox entries
+ * for the fixture, oldest first): an earlier run or a part swap logged offline counts at once.
+ */
+export function progressAfter(
+	start: BreakInStart,
+	rule: SettleRule,
+	events: readonly FixtureEvent[]
+): BreakInStart {
+	const policy: Policy = { ...DEFAULT_POLICY, ...rule };
+	let s = stateFrom(start);
+	for (const ev of events) s = applyEvent(s, ev, policy);
+	const b = s.breakIn;
+	return {
+		required: b.required,
+		reason: b.reason,
+		cycles: b.cycles,
+		acc: b.acc,
+		windows: b.windows
+	};
 }
 
 /** The verdict of the settle rule on a run so far, from the fixture's progress before it. */
