@@ -33,20 +33,26 @@ export async function startRun(code: string, startedBy?: string): Promise<BreakI
 	return run;
 }
 
-/** Saves the run with new cycles or note; returns what was saved. */
+/**
+ * Saves the run with new cycles or note; returns what was saved, or null when the run is no longer
+ * on the device (finished or discarded meanwhile, e.g. in another tab) — it is never brought back.
+ */
 export async function saveRun(
 	run: BreakInRunRecord,
 	change: { cycles?: RunCycle[]; note?: string }
-): Promise<BreakInRunRecord> {
+): Promise<BreakInRunRecord | null> {
 	const next: BreakInRunRecord = {
 		...run,
 		cycles: change.cycles ?? run.cycles,
 		note: change.note ?? run.note,
 		updatedAt: new Date().toISOString()
 	};
+	const tx = (await clientDb()).transaction('breakInRuns', 'readwrite');
+	const still = await tx.store.get(run.fixtureCode);
 	// Svelte state proxies cannot be stored: store plain copies.
-	await (await clientDb()).put('breakInRuns', JSON.parse(JSON.stringify(next)));
-	return next;
+	if (still) await tx.store.put(JSON.parse(JSON.stringify(next)));
+	await tx.done;
+	return still ? next : null;
 }
 
 /** Drops the run on `code` (the person confirmed). */
