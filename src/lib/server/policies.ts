@@ -66,6 +66,14 @@ export async function effectivePolicy(f: PolicySubject): Promise<EffectivePolicy
 		.where(
 			or(eq(policies.fixtureType, f.type), f.policyId ? eq(policies.id, f.policyId) : undefined)
 		);
+	return effectiveFrom(f, rows);
+}
+
+/** effectivePolicy from policy rows already loaded (any superset of the fixture's class and type rows). */
+export function effectiveFrom(
+	f: PolicySubject,
+	rows: (typeof policies.$inferSelect)[]
+): EffectivePolicyEntry[] {
 	const classRow = f.policyId ? rows.find((r) => r.id === f.policyId) : undefined;
 	const typeRow = rows.find((r) => r.fixtureType === f.type);
 

@@ -5,8 +5,8 @@ import { DEFAULT_POLICY, type Policy } from '$lib/domain/policy';
 import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
 import type { Actor } from './guard';
 import { db, schema } from './db';
-import { policiesFor } from './health';
 import { initialStateFor } from './ingest';
+import { effectiveFrom, type PolicySubject } from './policies';
 
 /*
  * The copy of the register a phone keeps for offline use: per fixture, what the card shows
@@ -104,7 +104,10 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 	}
 
 	// The settle rule exactly as ingest resolves the policy, so a phone's run verdict matches.
-	const rules = await policiesFor(rows.map(({ f }) => f));
+	const ruleOf = (f: PolicySubject) =>
+		Object.fromEntries(
+			effectiveFrom(f, policyRows).map((e) => [e.field, e.value])
+		) as unknown as Policy;
 
 	return rows.map(({ f, site, area, location, state }) => ({
 		code: f.code,
@@ -124,7 +127,7 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 			lastCleaningAt: iso(state?.lastCleaningAt),
 			lastInspectionAt: iso(state?.lastInspectionAt)
 		},
-		breakIn: breakInOf(f, state?.data as FixtureState | undefined, rules.get(f.id)!),
+		breakIn: breakInOf(f, state?.data as FixtureState | undefined, ruleOf(f)),
 		updatedAt: f.updatedAt.toISOString()
 	}));
 }
