@@ -1,9 +1,11 @@
 /**
  * The device's one IndexedDB database, `nestmark`: a copy of the register (snapshot), the outbox
- * of events not yet accepted by the server, photo blobs waiting to upload, and small settings.
+ * of events not yet accepted by the server, photo blobs waiting to upload, break-in runs in
+ * progress, and small settings.
  * Browser only; every caller runs after mount or inside a browser-side load.
  */
 import { openDB, type DBSchema, type IDBPDatabase } from 'idb';
+import type { RunCycle } from '$lib/domain/break-in-run';
 import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
 
 /** Where an outbox entry stands: not sent yet, in flight, or refused by the server. */
@@ -39,6 +41,20 @@ export interface PhotoBlob {
 	createdAt: string;
 }
 
+/** A break-in run being counted on this device: one per fixture, saved after every tap. */
+export interface BreakInRunRecord {
+	fixtureCode: string;
+	/** The device it is counted on (runs never travel between devices). */
+	deviceId: string;
+	/** Who started it, for the resume prompt. */
+	startedBy?: string;
+	startedAt: string;
+	updatedAt: string;
+	/** One entry per counted cycle, oldest first: that seating's readings (µm) or null. */
+	cycles: RunCycle[];
+	note: string;
+}
+
 /** Keys of the `meta` store. */
 export interface MetaValues {
 	deviceId: string;
@@ -58,13 +74,14 @@ interface NestmarkDB extends DBSchema {
 		indexes: { 'by-fixture': string; 'by-created': string; 'by-state': OutboxState };
 	};
 	photos: { key: string; value: PhotoBlob; indexes: { 'by-event': string } };
+	breakInRuns: { key: string; value: BreakInRunRecord };
 	meta: { key: keyof MetaValues; value: string };
 }
 
 export type ClientDb = IDBPDatabase<NestmarkDB>;
 
 const DB_NAME = 'nestmark';
-const DB_VERSION = 1;
+const DB_VERSION = 2;
 
 let opening: Promise<ClientDb> | undefined;
 
@@ -82,6 +99,8 @@ export function clientDb(): Promise<ClientDb> {
 				photos.createIndex('by-event', 'eventId');
 				db.createObjectStore('meta');
 			}
+			// Version 2 adds a store; the others and their data are kept as they are.
+			if (oldVersion < 2) db.createObjectStore('breakInRuns', { keyPath: 'fixtureCode' });
 		},
 		// Another tab opened a newer version (after an app update): let it upgrade.
 		blocking() {

@@ -65,8 +65,24 @@ async function validate(raw: {
 	return parseSyncEvent(raw);
 }
 
-/** Validates `input` and writes it to the outbox as waiting; nothing is written when it is invalid. */
-export async function addEntry(input: NewEvent, loggedBy?: string): Promise<AddResult> {
+/**
+ * A record that the new entry replaces on the device (a finished break-in run): it is deleted in
+ * the same transaction as the entry is written, so the event is never written twice or lost.
+ */
+export interface Replaces {
+	store: 'breakInRuns';
+	key: string;
+}
+
+/**
+ * Validates `input` and writes it to the outbox as waiting; nothing is written when it is invalid,
+ * or when the record it `replaces` is no longer there (already finished or discarded).
+ */
+export async function addEntry(
+	input: NewEvent,
+	loggedBy?: string,
+	replaces?: Replaces
+): Promise<AddResult> {
 	const parsed = await validate({
 		id: newUuid(),
 		fixtureCode: input.fixtureCode,
@@ -83,7 +99,20 @@ export async function addEntry(input: NewEvent, loggedBy?: string): Promise<AddR
 		attempts: 0,
 		...(loggedBy ? { loggedBy } : {})
 	};
-	await (await clientDb()).add('outbox', entry);
+	const db = await clientDb();
+	if (!replaces) await db.add('outbox', entry);
+	else {
+		const tx = db.transaction(['outbox', replaces.store], 'readwrite');
+		const gone = !(await tx.objectStore(replaces.store).get(replaces.key));
+		if (gone) {
+			tx.abort();
+			await tx.done.catch(() => {});
+			return { ok: false, errors: { '(event)': ['This was already logged or discarded.'] } };
+		}
+		await tx.objectStore(replaces.store).delete(replaces.key);
+		await tx.objectStore('outbox').add(entry);
+		await tx.done;
+	}
 	notify();
 	return { ok: true, entry };
 }

@@ -92,9 +92,12 @@ export class SyncEngine {
 		}
 	}
 
-	/** Writes an event to the outbox (always first), then lets the loop send it after the undo window. */
-	async log(event: outbox.NewEvent): Promise<outbox.AddResult> {
-		const result = await outbox.addEntry(event, this.#user?.name);
+	/**
+	 * Writes an event to the outbox (always first; with `replaces` removed in the same step), then
+	 * lets the loop send it after the undo window.
+	 */
+	async log(event: outbox.NewEvent, replaces?: outbox.Replaces): Promise<outbox.AddResult> {
+		const result = await outbox.addEntry(event, this.#user?.name, replaces);
 		// The outbox listener refreshes the counts; here only the send is timed.
 		if (result.ok) this.#schedule(this.#holdMs + 50);
 		return result;

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { handlingCautions } from './fixture-cautions';
+import { breakInCautions, handlingCautions } from './fixture-cautions';
 
 describe('handlingCautions', () => {
 	it('warns of a heavy lift from 15 kg (common practice), not below', () => {
@@ -13,5 +13,13 @@ describe('handlingCautions', () => {
 		expect(handlingCautions({ type: 'trihedral-vee-flat', mass_kg: null })).toEqual(['pinch']);
 		expect(handlingCautions({ type: 'pallet', mass_kg: 22 })).toEqual(['heavy', 'pinch']);
 		expect(handlingCautions({ type: 'vise', mass_kg: 3 })).toEqual([]);
+	});
+});
+
+describe('breakInCautions', () => {
+	it('always warns of pinch points, and of a heavy lift unless the mass is known to be light', () => {
+		expect(breakInCautions({ type: 'vise', mass_kg: 3 })).toEqual(['pinch']);
+		expect(breakInCautions({ type: 'three-vee', mass_kg: 15 })).toEqual(['heavy', 'pinch']);
+		expect(breakInCautions({ type: 'plate', mass_kg: null })).toEqual(['heavy', 'pinch']);
 	});
 });

@@ -18,3 +18,13 @@ export function handlingCautions(f: { type: FixtureType; mass_kg: number | null 
 
 /** Cautions shown beside cleaning: solvents and lubricants, and compressed air. */
 export const CLEANING_CAUTIONS: readonly CautionKind[] = ['solvent', 'air'];
+
+/**
+ * Cautions beside a break-in run, where the moving half is lifted and seated again and again:
+ * pinch points always (every seating closes the halves), and the heavy lift when the fixture is
+ * heavy or its mass is not recorded — a run should not assume a light part.
+ */
+export function breakInCautions(f: { type: FixtureType; mass_kg: number | null }): CautionKind[] {
+	const heavy = f.mass_kg === null || f.mass_kg >= HEAVY_LIFT_KG;
+	return [...(heavy ? (['heavy'] as const) : []), 'pinch'];
+}

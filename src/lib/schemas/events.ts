@@ -43,6 +43,8 @@ export function mayLogKind(roles: readonly Role[], kind: EventKind): boolean {
 export const MAX_READING_UM = 10_000;
 /** Largest cycle count in one event. */
 export const MAX_CYCLES_PER_EVENT = 100_000;
+/** Most readings one break-in event carries. */
+export const MAX_READINGS_PER_BREAK_IN = 10_000;
 
 const micrometres = (field: string) =>
 	z
@@ -140,7 +142,10 @@ export const inspectionPayloadSchema = z.strictObject({
 export const breakInPayloadSchema = z
 	.strictObject({
 		cycles: cycles('Cycles'),
-		readings: z.array(readingSchema).max(10_000, 'At most 10000 readings per run').default([]),
+		readings: z
+			.array(readingSchema)
+			.max(MAX_READINGS_PER_BREAK_IN, `At most ${MAX_READINGS_PER_BREAK_IN} readings per run`)
+			.default([]),
 		note: text('Note', 2000).optional()
 	})
 	.refine((b) => b.readings.length <= b.cycles, {

@@ -38,6 +38,27 @@ export const snapshotStateSchema = z.object({
 	lastInspectionAt: z.string().nullable()
 });
 
+/**
+ * The fixture's break-in progress as the server last folded it, and the settle rule of its policy,
+ * so a break-in run on the phone is judged by the same fold as on the server. Optional: copies
+ * stored before it existed lack it until the next refresh.
+ */
+export const snapshotBreakInSchema = z.object({
+	required: z.boolean(),
+	reason: z.enum(['new', 'part-swap', 'relubricated']).nullable(),
+	cycles: z.number().int(),
+	/** Running sums of the settling window not yet complete (see health.ts WindowAccumulator). */
+	acc: z.array(z.number()),
+	windows: z.array(z.object({ cycle: z.number(), R: z.number() })),
+	rule: z.object({
+		repeatabilitySpec_um: z.number(),
+		breakInMinCycles: z.number().int(),
+		settleWindow: z.number().int(),
+		settleTolerance_um: z.number()
+	})
+});
+export type SnapshotBreakIn = z.infer<typeof snapshotBreakInSchema>;
+
 /** One fixture in the device's copy of the register: what the card needs, and no more. */
 export const snapshotFixtureSchema = z.object({
 	code: z.string(),
@@ -51,6 +72,7 @@ export const snapshotFixtureSchema = z.object({
 	mass_kg: z.number().nullable(),
 	policy: snapshotPolicySchema,
 	state: snapshotStateSchema,
+	breakIn: snapshotBreakInSchema.optional(),
 	updatedAt: z.string()
 });
 export type SnapshotFixture = z.infer<typeof snapshotFixtureSchema>;

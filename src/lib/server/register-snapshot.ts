@@ -1,9 +1,12 @@
 import { createHash } from 'node:crypto';
 import { asc, eq, isNull } from 'drizzle-orm';
+import type { FixtureState } from '$lib/domain/health';
+import type { Policy } from '$lib/domain/policy';
 import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
 import type { Actor } from './guard';
 import { indexPolicyRows, policyValues, resolvePolicy } from './policies';
 import { db, schema } from './db';
+import { initialStateFor } from './state-store';
 
 /*
  * The copy of the register a phone keeps for offline use: per fixture, what the card shows
@@ -58,7 +61,11 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 		flagsOf.set(fl.fixtureId, list);
 	}
 
-	return rows.map(({ f, site, area, location, state }) => ({
+	return rows.map(({ f, site, area, location, state }) => {
+		// Resolved exactly as the server's health rules resolve it, so the card's figures and the
+		// phone's own break-in verdict agree with the server's.
+		const policy = policyValues(resolvePolicy(f, policyIndex));
+		return {
 		code: f.code,
 		name: f.name,
 		type: f.type,
@@ -66,9 +73,7 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 		location: { site, area, name: location },
 		flags: flagsOf.get(f.id) ?? [],
 		mass_kg: f.mass_kg,
-		// Resolved exactly as the server's health rules resolve it, so the card's figures (and any
-		// verdict the phone works out offline) agree with the server's.
-		policy: policyValues(resolvePolicy(f, policyIndex)) as PolicyFigures,
+		policy: policy as PolicyFigures,
 		state: {
 			totalCycles: state?.totalCycles ?? 0,
 			cyclesSinceCleaning: state?.cyclesSinceCleaning ?? 0,
@@ -78,8 +83,32 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 			lastCleaningAt: iso(state?.lastCleaningAt),
 			lastInspectionAt: iso(state?.lastInspectionAt)
 		},
+		breakIn: breakInOf(f, state?.data as FixtureState | undefined, policy),
 		updatedAt: f.updatedAt.toISOString()
-	}));
+	};
+	});
+}
+
+/** The fixture's break-in progress (a fixture with no events yet starts as ingest would) and rule. */
+function breakInOf(
+	f: { commissionedOn: string | null },
+	state: FixtureState | undefined,
+	policy: Policy
+): NonNullable<SnapshotFixture['breakIn']> {
+	const b = state?.breakIn ?? initialStateFor(f).breakIn;
+	return {
+		required: b.required,
+		reason: b.reason,
+		cycles: b.cycles,
+		acc: b.acc,
+		windows: b.windows,
+		rule: {
+			repeatabilitySpec_um: policy.repeatabilitySpec_um,
+			breakInMinCycles: policy.breakInMinCycles,
+			settleWindow: policy.settleWindow,
+			settleTolerance_um: policy.settleTolerance_um
+		}
+	};
 }
 
 /** A strong ETag over the content: same entries, same tag, on any server. */
