@@ -66,26 +66,26 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 		// phone's own break-in verdict agree with the server's.
 		const policy = policyValues(resolvePolicy(f, policyIndex));
 		return {
-		code: f.code,
-		name: f.name,
-		type: f.type,
-		status: f.status,
-		location: { site, area, name: location },
-		flags: flagsOf.get(f.id) ?? [],
-		mass_kg: f.mass_kg,
-		policy: policy as PolicyFigures,
-		state: {
-			totalCycles: state?.totalCycles ?? 0,
-			cyclesSinceCleaning: state?.cyclesSinceCleaning ?? 0,
-			cyclesSinceInspection: state?.cyclesSinceInspection ?? 0,
-			repeatability_um: state?.repeatability_um ?? null,
-			lastEventAt: iso(state?.lastEventAt),
-			lastCleaningAt: iso(state?.lastCleaningAt),
-			lastInspectionAt: iso(state?.lastInspectionAt)
-		},
-		breakIn: breakInOf(f, state?.data as FixtureState | undefined, policy),
-		updatedAt: f.updatedAt.toISOString()
-	};
+			code: f.code,
+			name: f.name,
+			type: f.type,
+			status: f.status,
+			location: { site, area, name: location },
+			flags: flagsOf.get(f.id) ?? [],
+			mass_kg: f.mass_kg,
+			policy: policy as PolicyFigures,
+			state: {
+				totalCycles: state?.totalCycles ?? 0,
+				cyclesSinceCleaning: state?.cyclesSinceCleaning ?? 0,
+				cyclesSinceInspection: state?.cyclesSinceInspection ?? 0,
+				repeatability_um: state?.repeatability_um ?? null,
+				lastEventAt: iso(state?.lastEventAt),
+				lastCleaningAt: iso(state?.lastCleaningAt),
+				lastInspectionAt: iso(state?.lastInspectionAt)
+			},
+			breakIn: breakInOf(f, state?.data as FixtureState | undefined, policy),
+			updatedAt: f.updatedAt.toISOString()
+		};
 	});
 }
 

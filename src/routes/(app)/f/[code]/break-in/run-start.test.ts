@@ -14,9 +14,7 @@ const fixture = (over: Partial<SnapshotFixture> = {}): SnapshotFixture => ({
 	flags: [],
 	mass_kg: null,
 	policy: {
-		repeatabilitySpec_um: 1,
-		ratedLifeCycles: null,
-		breakInMinCycles: 25,
+		...rule,
 		cleaningIntervalCycles: null,
 		cleaningIntervalDays: null,
 		inspectionIntervalCycles: null,
