@@ -29,7 +29,7 @@ export interface OutboxEntry {
 	attempts: number;
 }
 
-/** A photo kept until its event's upload succeeds. */
+/** A photo kept until its upload succeeds (after its event has reached the server). */
 export interface PhotoBlob {
 	id: string;
 	eventId: string;
@@ -37,6 +37,13 @@ export interface PhotoBlob {
 	blob: Blob;
 	contentType: string;
 	createdAt: string;
+	/** The small JPEG made on the phone when the photo was taken, if the browser could. */
+	thumb?: Blob;
+	/** Uploads tried without success, and when to try next (ISO 8601), for the back-off. */
+	attempts?: number;
+	nextAttemptAt?: string;
+	/** The server's reason when it refused the photo; it then waits for a person. */
+	error?: string;
 }
 
 /** Keys of the `meta` store. */

@@ -1,6 +1,11 @@
 import { z } from 'zod';
 import { fixtureCodeSchema } from './events';
 
+/** Largest photo accepted: a full-resolution phone JPEG is 2–6 MB (common practice). */
+export const PHOTO_LIMIT_BYTES = 8 * 1024 * 1024;
+/** Longest side of the thumbnail the phone makes, px. */
+export const THUMB_MAX_PX = 320;
+
 /** Media types a photo may have; checked again on the server from the bytes themselves. */
 export const PHOTO_ACCEPT = 'image/jpeg,image/png,image/webp';
 

@@ -8,6 +8,7 @@ import { createHash } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
 import { sniffImage, type ImageType } from '$lib/domain/image-type';
+import { PHOTO_LIMIT_BYTES } from '$lib/schemas/attachments';
 import { mayLogKind } from '$lib/schemas/events';
 import { db, schema } from './db';
 import type { Actor } from './guard';
@@ -15,8 +16,7 @@ import * as storage from './storage';
 
 const { attachments, events, fixtures } = schema;
 
-/** Largest photo accepted: a full-resolution phone JPEG is 2–6 MB (common practice). */
-export const PHOTO_LIMIT_BYTES = 8 * 1024 * 1024;
+export { PHOTO_LIMIT_BYTES };
 /** Largest thumbnail accepted (the phone makes them ≤ 320 px, a few tens of KB). */
 export const THUMB_LIMIT_BYTES = 512 * 1024;
 /** Largest upload request: a photo, its thumbnail and the form's own bytes. */
