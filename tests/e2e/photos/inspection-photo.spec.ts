@@ -123,7 +123,9 @@ test('a technician records an inspection with a photo offline, and it appears af
 	const small = await page.request.get(`/api/attachments/${photoIds[0]}/thumb`);
 	expect(small.headers()['content-type']).toBe('image/jpeg');
 	expect((await small.body()).byteLength).toBeLessThan((await full.body()).byteLength);
-	// Signed out, the photo is refused.
+	// Signed out, the photo is refused. (Off the card first, so no sync request in flight can bring
+	// the session cookie back.)
+	await page.goto('about:blank');
 	await context.clearCookies();
 	const refused = await page.request.get(`/api/attachments/${photoIds[0]}/thumb`);
 	expect(refused.status()).toBe(401);
