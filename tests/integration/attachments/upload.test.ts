@@ -3,7 +3,7 @@ import { crc32, deflateSync } from 'node:zlib';
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Actor } from '$lib/server/guard';
-import { PHOTO_LIMIT_BYTES } from '$lib/server/attachments';
+import { PHOTO_LIMIT_BYTES, storePhoto } from '$lib/server/attachments';
 import * as storage from '$lib/server/storage';
 import { GET as getPhoto, PUT as putPhoto } from '../../../src/routes/api/attachments/[id]/+server';
 import { GET as getThumb } from '../../../src/routes/api/attachments/[id]/thumb/+server';
@@ -253,6 +253,20 @@ describe('photo uploads against s3rver', () => {
 		expect(
 			(await call(getThumb, tech, get('not-a-uuid', '/thumb'), { id: 'not-a-uuid' })).status
 		).toBe(404);
+	});
+
+	it('leaves no object behind when the row cannot be written', async () => {
+		// A person the database does not know: the row's foreign key fails after the object is put.
+		const ghost: Actor = { ...tech, id: randomUUID() };
+		const bytes = png(16, 16);
+		await expect(
+			storePhoto(ghost, { id: photoIds[2], fixtureCode: code, eventId, photo: bytes })
+		).rejects.toThrow();
+		const hash = createHash('sha256').update(bytes).digest('hex');
+		expect(await storage.getObject(`attachments/${photoIds[2]}/${hash}`)).toBeNull();
+		expect(
+			await db.select().from(schema.attachments).where(eq(schema.attachments.id, photoIds[2]))
+		).toEqual([]);
 	});
 
 	it('lets only people who may log inspections upload, and only to a listed inspection', async () => {
