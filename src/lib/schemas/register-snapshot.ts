@@ -43,6 +43,8 @@ export const snapshotFixtureSchema = z.object({
 	mass_kg: z.number().nullable(),
 	policy: snapshotPolicySchema,
 	state: snapshotStateSchema,
+	/** Contacts an inspection grades, from the latest saved geometry; null without one. */
+	inspectionContacts: z.array(z.string()).nullable().optional(),
 	updatedAt: z.string()
 });
 export type SnapshotFixture = z.infer<typeof snapshotFixtureSchema>;

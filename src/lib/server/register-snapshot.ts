@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto';
 import { asc, eq, isNull } from 'drizzle-orm';
+import { inspectionContactNames } from '$lib/domain/inspection-contacts';
 import { DEFAULT_POLICY } from '$lib/domain/policy';
 import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
 import type { Actor } from './guard';
@@ -11,7 +12,8 @@ import { db, schema } from './db';
  * hash of the content itself, so it changes exactly when something a device shows changes.
  */
 
-const { fixtures, locations, areas, sites, fixtureState, flags, policies } = schema;
+const { fixtures, locations, areas, sites, fixtureState, flags, policies, couplingGeometries } =
+	schema;
 
 type PolicyRow = typeof policies.$inferSelect;
 type PolicyFigures = SnapshotFixture['policy'];
@@ -91,6 +93,7 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 			.orderBy(asc(flags.raisedAt), asc(flags.id))
 	]);
 
+	const contactsOf = await geometryContacts(rows.map((r) => r.f.id));
 	const byId = new Map(policyRows.map((p) => [p.id, p]));
 	const byType = new Map(policyRows.filter((p) => p.fixtureType).map((p) => [p.fixtureType, p]));
 	const flagsOf = new Map<number, SnapshotFixture['flags']>();
@@ -118,8 +121,32 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 			lastCleaningAt: iso(state?.lastCleaningAt),
 			lastInspectionAt: iso(state?.lastInspectionAt)
 		},
+		inspectionContacts: contactsOf.get(f.id) ?? null,
 		updatedAt: f.updatedAt.toISOString()
 	}));
+}
+
+/** Per fixture, the inspection contacts named by its latest saved geometry (if it has one). */
+async function geometryContacts(fixtureIds: number[]): Promise<Map<number, string[]>> {
+	const out = new Map<number, string[]>();
+	if (!fixtureIds.length) return out;
+	const rows = await db
+		.select({
+			fixtureId: couplingGeometries.fixtureId,
+			version: couplingGeometries.version,
+			contacts: couplingGeometries.contacts
+		})
+		.from(couplingGeometries)
+		.where(fixtureIds.length === 1 ? eq(couplingGeometries.fixtureId, fixtureIds[0]) : undefined)
+		.orderBy(asc(couplingGeometries.fixtureId), asc(couplingGeometries.version));
+	const wanted = new Set(fixtureIds);
+	for (const r of rows) {
+		if (!wanted.has(r.fixtureId)) continue;
+		const names = inspectionContactNames(r.contacts.map((c) => c.label));
+		if (names.length) out.set(r.fixtureId, names);
+		else out.delete(r.fixtureId);
+	}
+	return out;
 }
 
 /** A strong ETag over the content: same entries, same tag, on any server. */

@@ -1,6 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import { parseSyncEvent } from '$lib/schemas/events';
-import { defaultContacts, draftProblems, extraContact, inspectionPayload } from './inspection-form';
+import {
+	defaultContacts,
+	draftProblems,
+	extraContact,
+	initialContacts,
+	inspectionPayload
+} from './inspection-form';
 
 const event = (payload: Record<string, unknown>) => ({
 	id: '1b4e28ba-2fa1-4d2b-883f-0016d3cca427',
@@ -31,6 +37,18 @@ describe('the inspection form', () => {
 		const vise = defaultContacts('vise');
 		expect(vise.map((c) => [c.name, c.fixed])).toEqual([['Contact 1', false]]);
 		expect(extraContact(vise).name).toBe('Contact 2');
+	});
+
+	it('prefers the contacts named by the saved geometry', () => {
+		const fromGeometry = initialContacts('three-vee', ['Ball 1', 'Ball 3', 'Vee 1', 'Vee 3']);
+		expect(fromGeometry.map((c) => [c.name, c.fixed])).toEqual([
+			['Ball 1', true],
+			['Ball 3', true],
+			['Vee 1', true],
+			['Vee 3', true]
+		]);
+		expect(initialContacts('three-vee', null).map((c) => c.name)).toHaveLength(6);
+		expect(initialContacts('plate', []).map((c) => c.name)).toEqual(['Contact 1']);
 	});
 
 	it('sends only graded contacts, and the schema accepts the payload', () => {

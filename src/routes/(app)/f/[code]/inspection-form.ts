@@ -44,6 +44,14 @@ export function defaultContacts(type: FixtureType): ContactDraft[] {
 	return [draft('Contact 1', false)];
 }
 
+/** The form's contacts: those named by the fixture's saved geometry, else by its type. */
+export function initialContacts(
+	type: FixtureType,
+	fromGeometry: readonly string[] | null | undefined
+): ContactDraft[] {
+	return fromGeometry?.length ? fromGeometry.map((n) => draft(n, true)) : defaultContacts(type);
+}
+
 /** A new generic contact, named after the ones already there. */
 export function extraContact(existing: readonly ContactDraft[]): ContactDraft {
 	const names = new Set(existing.map((c) => c.name.trim().toLowerCase()));
