@@ -8,6 +8,7 @@ import { defineConfig, devices } from '@playwright/test';
 // development environment: the browser tests always run against the test database.
 const port = Number(process.env.NESTMARK_TEST_PORT || 3100);
 const smtpPort = process.env.NESTMARK_TEST_SMTP_PORT || '2526';
+const s3Port = Number(process.env.NESTMARK_TEST_S3_PORT || 4570);
 const dbPort = process.env.NESTMARK_DB_PORT || '3307';
 const dbPassword = encodeURIComponent(process.env.NESTMARK_DB_PASSWORD || 'nestmark-dev');
 const origin = `http://127.0.0.1:${port}`;
@@ -21,8 +22,8 @@ function authSecret(): string {
 
 const testEnv: Record<string, string> = {
 	NESTMARK_ENV: 'test',
-	// As in scripts/nestmark.sh: the sync API enforces its own 2 MB limit.
-	BODY_SIZE_LIMIT: '3M',
+	// As in scripts/nestmark.sh: the sync API (2 MB) and photo uploads (8 MB) enforce their own limits.
+	BODY_SIZE_LIMIT: '10M',
 	HOST: '127.0.0.1',
 	PORT: String(port),
 	ORIGIN: origin,
@@ -35,7 +36,15 @@ const testEnv: Record<string, string> = {
 	SMTP_USER: '',
 	SMTP_PASSWORD: '',
 	MAIL_FROM: process.env.MAIL_FROM || 'Nestmark <nestmark@localhost>',
-	MAIL_CAPTURE_DIR: resolve('.data/mail-test')
+	MAIL_CAPTURE_DIR: resolve('.data/mail-test'),
+	// Photos go to the S3 fake (scripts/s3-fake.ts); s3rver accepts only its own key pair.
+	S3_ENDPOINT: `http://127.0.0.1:${s3Port}`,
+	S3_BUCKET: 'nestmark-attachments',
+	S3_REGION: 'us-east-1',
+	S3_FORCE_PATH_STYLE: 'true',
+	S3_ACCESS_KEY_ID: 'S3RVER',
+	S3_SECRET_ACCESS_KEY: 'S3RVER',
+	S3_FAKE_DIR: resolve('.data/s3-test')
 };
 
 // Specs read the same values (e.g. MAIL_CAPTURE_DIR to open captured mail, DATABASE_URL for
@@ -75,15 +84,29 @@ export default defineConfig({
 			}
 		}
 	],
-	webServer: {
-		command: 'node build',
-		url: `${origin}/`,
-		env: testEnv,
-		reuseExistingServer: false,
-		timeout: 60_000,
-		// Request lines stay out of the report; errors the app prints still show.
-		stdout: 'ignore',
-		stderr: 'pipe',
-		gracefulShutdown: { signal: 'SIGTERM', timeout: 5_000 }
-	}
+	webServer: [
+		{
+			// `npm test` starts the S3 fake before vitest and it is reused here; a bare
+			// `npx playwright test` starts it.
+			command: 'node --import tsx scripts/s3-fake.ts',
+			port: s3Port,
+			env: testEnv,
+			reuseExistingServer: true,
+			timeout: 20_000,
+			stdout: 'ignore',
+			stderr: 'pipe',
+			gracefulShutdown: { signal: 'SIGTERM', timeout: 5_000 }
+		},
+		{
+			command: 'node build',
+			url: `${origin}/`,
+			env: testEnv,
+			reuseExistingServer: false,
+			timeout: 60_000,
+			// Request lines stay out of the report; errors the app prints still show.
+			stdout: 'ignore',
+			stderr: 'pipe',
+			gracefulShutdown: { signal: 'SIGTERM', timeout: 5_000 }
+		}
+	]
 });

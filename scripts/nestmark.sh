@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
-# Nestmark's local runner: brings up a project-local MariaDB on 127.0.0.1, the fake SMTP server
-# and the app, or runs the whole test suite against a separate test database.
+# Nestmark's local runner: brings up a project-local MariaDB on 127.0.0.1, the fake SMTP and S3
+# servers and the app, or runs the whole test suite against a separate test database.
 #
 #   bash scripts/nestmark.sh start      build and serve the demo on http://127.0.0.1:3000
 #   bash scripts/nestmark.sh test       check, lint, vitest, build, Playwright; summary at the end
@@ -101,9 +101,11 @@ setup_env() {
 	export HOST="${HOST:-127.0.0.1}"
 	export SMTP_HOST="${SMTP_HOST:-127.0.0.1}"
 	export MAIL_FROM="${MAIL_FROM:-Nestmark <nestmark@localhost>}"
-	# adapter-node's default body limit (512K) is below the sync API's own 2 MB limit; let the API
-	# decide, so an oversize batch gets its clear JSON 400.
-	export BODY_SIZE_LIMIT="${BODY_SIZE_LIMIT:-3M}"
+	# adapter-node's default body limit (512K) is below the sync API's own 2 MB limit and the photo
+	# upload's 8 MB; let each endpoint decide, so an oversize body gets its clear JSON 400.
+	export BODY_SIZE_LIMIT="${BODY_SIZE_LIMIT:-10M}"
+	export S3_BUCKET="${S3_BUCKET:-nestmark-attachments}"
+	export S3_REGION="${S3_REGION:-us-east-1}"
 
 	if [[ "$mode" == test ]]; then
 		# Tests never take DATABASE_URL, ports or folders from .env: the test database is dropped
@@ -119,6 +121,12 @@ setup_env() {
 		export NESTMARK_ENV=test
 		# Mail always goes to the fake, which offers neither TLS nor AUTH.
 		unset SMTP_USER SMTP_PASSWORD SMTP_SECURE
+		# Photos always go to the S3 fake, emptied on every run.
+		export NESTMARK_TEST_S3_PORT="${NESTMARK_TEST_S3_PORT:-4570}"
+		export S3_ENDPOINT="http://127.0.0.1:$NESTMARK_TEST_S3_PORT"
+		export S3_FAKE_DIR="$DATA_DIR/s3-test"
+		export S3_BUCKET=nestmark-attachments S3_REGION=us-east-1 S3_FORCE_PATH_STYLE=true
+		export S3_ACCESS_KEY_ID=S3RVER S3_SECRET_ACCESS_KEY=S3RVER
 	else
 		export DATABASE_URL="${DATABASE_URL:-$db_base/$DEV_DB}"
 		export PORT="${PORT:-3000}"
@@ -126,6 +134,14 @@ setup_env() {
 		export SMTP_PORT="${SMTP_PORT:-2525}"
 		export MAIL_CAPTURE_DIR="${MAIL_CAPTURE_DIR:-$DATA_DIR/mail}"
 		export NESTMARK_ENV="${NESTMARK_ENV:-development}"
+		export NESTMARK_S3_PORT="${NESTMARK_S3_PORT:-4569}"
+		if [[ -z "${S3_ENDPOINT:-}" && "$NESTMARK_ENV" != production ]]; then
+			export S3_ENDPOINT="http://127.0.0.1:$NESTMARK_S3_PORT"
+			# The fake's fixed key pair; a real store's keys come from .env or the environment.
+			export S3_ACCESS_KEY_ID="${S3_ACCESS_KEY_ID:-S3RVER}"
+			export S3_SECRET_ACCESS_KEY="${S3_SECRET_ACCESS_KEY:-S3RVER}"
+		fi
+		export S3_FAKE_DIR="${S3_FAKE_DIR:-$DATA_DIR/s3}"
 	fi
 }
 
@@ -389,6 +405,7 @@ wait_for_port() {
 }
 
 MAIL_PID=""
+S3_PID=""
 APP_PID=""
 
 start_mail_fake() {
@@ -407,6 +424,23 @@ start_mail_fake() {
 	wait_for_port "$SMTP_PORT" "$MAIL_PID" 20 || die "the fake SMTP server did not start"
 }
 
+# The S3 fake runs only when S3_ENDPOINT is a loopback http address (a real store is left alone).
+start_s3_fake() {
+	local port
+	if [[ ! "${S3_ENDPOINT:-}" =~ ^http://(127\.0\.0\.1|localhost):([0-9]+)/?$ ]]; then
+		say "photos go to the S3 store at ${S3_ENDPOINT:-AWS} (no fake started)"
+		return 0
+	fi
+	port="${BASH_REMATCH[2]}"
+	if port_in_use "$port"; then
+		die "port $port (S3_ENDPOINT) is already in use; is another Nestmark running?"
+	fi
+	mkdir -p "$S3_FAKE_DIR"
+	node --import tsx scripts/s3-fake.ts </dev/null &
+	S3_PID=$!
+	wait_for_port "$port" "$S3_PID" 20 || die "the fake S3 server did not start"
+}
+
 CLEANED_UP=""
 cleanup() {
 	[[ -n "$CLEANED_UP" ]] && return 0
@@ -415,6 +449,7 @@ cleanup() {
 	set +e
 	stop_pid "app" "$APP_PID"
 	stop_pid "fake SMTP server" "$MAIL_PID"
+	stop_pid "fake S3 server" "$S3_PID"
 	db_stop_started
 	set -e
 	return 0
@@ -460,6 +495,7 @@ cmd_start() {
 		die "port $PORT is already in use; stop the other program or set PORT"
 	fi
 	start_mail_fake
+	start_s3_fake
 	say "building the app"
 	vite build
 	node build </dev/null &
@@ -468,6 +504,7 @@ cmd_start() {
 	echo
 	echo "  Nestmark is running at $ORIGIN"
 	[[ -n "$MAIL_PID" ]] && echo "  Mail sent by the app is captured in $MAIL_CAPTURE_DIR"
+	[[ -n "$S3_PID" ]] && echo "  Photos are kept by the local S3 fake in $S3_FAKE_DIR"
 	print_demo_accounts
 	echo "  Press Ctrl-C to stop."
 	echo
@@ -538,8 +575,9 @@ cmd_test() {
 	db_up yes
 	say "recreating the test database $TEST_DB"
 	db_recreate "$TEST_DB"
-	rm -rf "$MAIL_CAPTURE_DIR"
+	rm -rf "$MAIL_CAPTURE_DIR" "$S3_FAKE_DIR"
 	start_mail_fake
+	start_s3_fake
 
 	step "migrate test database" run_migrate
 	step "svelte-check" npm run check

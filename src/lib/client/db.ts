@@ -31,7 +31,7 @@ export interface OutboxEntry {
 	attempts: number;
 }
 
-/** A photo kept until its event's upload succeeds. */
+/** A photo kept until its upload succeeds (after its event has reached the server). */
 export interface PhotoBlob {
 	id: string;
 	eventId: string;
@@ -39,6 +39,13 @@ export interface PhotoBlob {
 	blob: Blob;
 	contentType: string;
 	createdAt: string;
+	/** The small JPEG made on the phone when the photo was taken, if the browser could. */
+	thumb?: Blob;
+	/** Uploads tried without success, and when to try next (ISO 8601), for the back-off. */
+	attempts?: number;
+	nextAttemptAt?: string;
+	/** The server's reason when it refused the photo; it then waits for a person. */
+	error?: string;
 }
 
 /** A break-in run being counted on this device: one per fixture, saved after every tap. */

@@ -4,7 +4,7 @@
  * server's reason, until a person fixes or discards them.
  */
 import type { EventKind, FieldErrors } from '$lib/schemas/events';
-import { clientDb, type OutboxEntry } from './db';
+import { clientDb, type OutboxEntry, type PhotoBlob } from './db';
 import { newUuid } from './device-id';
 
 export type { OutboxEntry, OutboxState } from './db';
@@ -16,6 +16,16 @@ export interface NewEvent {
 	payload: Record<string, unknown>;
 	/** Defaults to now (device clock). */
 	occurredAt?: string;
+	/** Photos that go with the event (ids listed in its payload), kept until uploaded. */
+	photos?: NewPhoto[];
+}
+
+/** A photo taken for an event, before it is written to the device. */
+export interface NewPhoto {
+	id: string;
+	blob: Blob;
+	contentType: string;
+	thumb?: Blob;
 }
 
 export type AddResult = { ok: true; entry: OutboxEntry } | { ok: false; errors: FieldErrors };
@@ -99,10 +109,13 @@ export async function addEntry(
 		attempts: 0,
 		...(loggedBy ? { loggedBy } : {})
 	};
-	const db = await clientDb();
-	if (!replaces) await db.add('outbox', entry);
-	else {
-		const tx = db.transaction(['outbox', replaces.store], 'readwrite');
+	// One transaction for the event, its photos and the record it replaces: never an event whose
+	// photos were lost, and never a finished run that is logged twice.
+	const stores = replaces
+		? (['outbox', 'photos', replaces.store] as const)
+		: (['outbox', 'photos'] as const);
+	const tx = (await clientDb()).transaction(stores, 'readwrite');
+	if (replaces) {
 		const gone = !(await tx.objectStore(replaces.store).get(replaces.key));
 		if (gone) {
 			tx.abort();
@@ -110,9 +123,22 @@ export async function addEntry(
 			return { ok: false, errors: { '(event)': ['This was already logged or discarded.'] } };
 		}
 		await tx.objectStore(replaces.store).delete(replaces.key);
-		await tx.objectStore('outbox').add(entry);
-		await tx.done;
 	}
+	await tx.objectStore('outbox').add(entry);
+	for (const p of input.photos ?? []) {
+		const photo: PhotoBlob = {
+			id: p.id,
+			eventId: entry.id,
+			fixtureCode: entry.fixtureCode,
+			blob: p.blob,
+			contentType: p.contentType,
+			createdAt: entry.createdAt,
+			...(p.thumb ? { thumb: p.thumb } : {}),
+			attempts: 0
+		};
+		await tx.objectStore('photos').put(photo);
+	}
+	await tx.done;
 	notify();
 	return { ok: true, entry };
 }
@@ -207,10 +233,16 @@ export async function rejectEntries(ids: string[], error: string): Promise<void>
  * its way to the server cannot be taken back. Returns whether it was removed.
  */
 export async function discardEntry(id: string, onlyIfWaiting = false): Promise<boolean> {
-	const tx = (await clientDb()).transaction('outbox', 'readwrite');
-	const e = await tx.store.get(id);
+	const tx = (await clientDb()).transaction(['outbox', 'photos'], 'readwrite');
+	const store = tx.objectStore('outbox');
+	const e = await store.get(id);
 	const removable = !!e && (!onlyIfWaiting || e.state === 'waiting');
-	if (removable) await tx.store.delete(id);
+	if (removable) {
+		await store.delete(id);
+		// Its photos go with it: they belong to no event the server will ever have.
+		const photos = tx.objectStore('photos');
+		for (const key of await photos.index('by-event').getAllKeys(id)) await photos.delete(key);
+	}
 	await tx.done;
 	if (removable) notify();
 	return removable;
@@ -240,9 +272,16 @@ export async function fixEntry(id: string, payload: Record<string, unknown>): Pr
 		state: 'waiting',
 		attempts: 0
 	};
-	const tx = db.transaction('outbox', 'readwrite');
-	await tx.store.delete(id);
-	await tx.store.add(entry);
+	const tx = db.transaction(['outbox', 'photos'], 'readwrite');
+	await tx.objectStore('outbox').delete(id);
+	await tx.objectStore('outbox').add(entry);
+	// Photos follow the corrected entry (its new id) if it still lists them; else they go.
+	const listed = new Set(Array.isArray(entry.payload.photoIds) ? entry.payload.photoIds : []);
+	const photos = tx.objectStore('photos');
+	for (const p of await photos.index('by-event').getAll(id)) {
+		if (listed.has(p.id)) await photos.put({ ...p, eventId: entry.id });
+		else await photos.delete(p.id);
+	}
 	await tx.done;
 	notify();
 	return { ok: true, entry };

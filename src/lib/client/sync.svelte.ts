@@ -8,6 +8,7 @@ import { batches, nextSyncDelayMs, SYNC_IDLE_POLL_MS } from '$lib/domain/sync-sc
 import { getMeta, setMeta } from './db';
 import { getDeviceId } from './device-id';
 import * as outbox from './outbox';
+import * as photos from './photos';
 import { refreshSnapshot } from './register-snapshot';
 
 /** Events per request (the API takes up to 500; smaller batches fail and retry cheaply). */
@@ -28,6 +29,9 @@ export class SyncEngine {
 	pending = $state(0);
 	/** Entries the server refused; they wait for a person. */
 	rejected = $state(0);
+	/** Photos on the device not yet uploaded (they go after their event), and photos refused. */
+	photosPending = $state(0);
+	photosRejected = $state(0);
 	/** Last time the outbox was confirmed delivered (ISO 8601), or null if never. */
 	lastSyncAt = $state<string | null>(null);
 	online = $state(true);
@@ -43,6 +47,8 @@ export class SyncEngine {
 	#fetch: typeof fetch;
 	#holdMs: number;
 	#failures = 0;
+	/** Photos that could upload now (their event delivered), for the timer. */
+	#photosReady = 0;
 	#timer: ReturnType<typeof setTimeout> | undefined;
 	#running: Promise<void> | null = null;
 	#again: 'none' | 'normal' | 'forced' = 'none';
@@ -65,6 +71,7 @@ export class SyncEngine {
 		const offline = () => (this.online = false);
 		const visible = () => document.visibilityState === 'visible' && void this.run();
 		const unsubscribe = outbox.onOutboxChange(() => void this.#refreshCounts());
+		const unsubscribePhotos = photos.onPhotosChange(() => void this.#refreshCounts());
 		window.addEventListener('online', wake);
 		window.addEventListener('offline', offline);
 		document.addEventListener('visibilitychange', visible);
@@ -75,6 +82,7 @@ export class SyncEngine {
 		this.#stop = () => {
 			clearTimeout(this.#timer);
 			unsubscribe();
+			unsubscribePhotos();
 			window.removeEventListener('online', wake);
 			window.removeEventListener('offline', offline);
 			document.removeEventListener('visibilitychange', visible);
@@ -93,8 +101,8 @@ export class SyncEngine {
 	}
 
 	/**
-	 * Writes an event to the outbox (always first; with `replaces` removed in the same step), then
-	 * lets the loop send it after the undo window.
+	 * Writes an event to the outbox (always first; its photos and the record it `replaces` in the
+	 * same transaction), then lets the loop send it after the undo window.
 	 */
 	async log(event: outbox.NewEvent, replaces?: outbox.Replaces): Promise<outbox.AddResult> {
 		const result = await outbox.addEntry(event, this.#user?.name, replaces);
@@ -157,6 +165,14 @@ export class SyncEngine {
 				if (outcome !== 'ok') break;
 				delivered += batch.length;
 				answered = true;
+			}
+			if (outcome === 'ok') {
+				// Photos go after their event, so the server can check they belong to it.
+				const up = await photos.uploadWaiting(this.#fetch);
+				this.#photosReady = up.remaining;
+				if (up.outcome === 'network') this.online = navigator.onLine;
+				if (up.outcome === 'server') this.problem = up.problem ?? null;
+				outcome = up.outcome;
 			}
 			if (outcome === 'ok' && this.#snapshotDue(delivered > 0)) {
 				const r = await refreshSnapshot(this.#fetch);
@@ -255,14 +271,17 @@ export class SyncEngine {
 	}
 
 	async #refreshCounts(): Promise<void> {
-		const c = await outbox.outboxCounts();
+		const [c, p] = await Promise.all([outbox.outboxCounts(), photos.photoCounts()]);
 		this.pending = c.pending;
 		this.rejected = c.rejected;
+		this.photosPending = p.pending;
+		this.photosRejected = p.rejected;
 		this.revision += 1;
 	}
 
 	#scheduleNext(): void {
-		this.#schedule(nextSyncDelayMs({ pending: this.pending, failures: this.#failures }));
+		const pending = this.pending + this.#photosReady;
+		this.#schedule(nextSyncDelayMs({ pending, failures: this.#failures }));
 	}
 
 	#schedule(ms: number): void {

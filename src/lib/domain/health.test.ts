@@ -355,6 +355,26 @@ describe('replace soon / replace now', () => {
 		);
 	});
 
+	it('the last inspection’s worst contact counts, against the policy’s own wear limit', () => {
+		const strict: Policy = { ...policy, wearLimitGrade: 2 };
+		const h = brokenIn();
+		h.inspection([0, 2, 1]);
+		let s = recompute(h.events, strict);
+		expect(s.wear.grade).toBe(2);
+		expect(flag(evaluateFlags(s, strict, new Date(h.now())), 'replace-now')!.reason).toBe(
+			'Replace now: last inspection found wear grade 2 (limit 2).'
+		);
+		// The same grade is within the default limit of 3.
+		expect(kinds(evaluateFlags(recompute(h.events, policy), policy, new Date(h.now())))).toEqual(
+			[]
+		);
+		// A later inspection that finds less (after a clean-up, say) is the one that counts.
+		h.inspection([1, 1, 1]);
+		s = recompute(h.events, strict);
+		expect(s.wear.grade).toBe(1);
+		expect(flag(evaluateFlags(s, strict, new Date(h.now())), 'replace-now')).toBeUndefined();
+	});
+
 	it('a swap of balls clears the wear record; only balls and seats together renew the life', () => {
 		const h = brokenIn();
 		h.reseat(50);

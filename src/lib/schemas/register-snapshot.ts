@@ -73,6 +73,8 @@ export const snapshotFixtureSchema = z.object({
 	policy: snapshotPolicySchema,
 	state: snapshotStateSchema,
 	breakIn: snapshotBreakInSchema.optional(),
+	/** Contacts an inspection grades, from the latest saved geometry; null without one. */
+	inspectionContacts: z.array(z.string()).nullable().optional(),
 	updatedAt: z.string()
 });
 export type SnapshotFixture = z.infer<typeof snapshotFixtureSchema>;

@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto';
 import { asc, eq, isNull } from 'drizzle-orm';
 import type { FixtureState } from '$lib/domain/health';
+import { inspectionContactNames } from '$lib/domain/inspection-contacts';
 import type { Policy } from '$lib/domain/policy';
 import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
 import type { Actor } from './guard';
@@ -14,7 +15,8 @@ import { initialStateFor } from './state-store';
  * hash of the content itself, so it changes exactly when something a device shows changes.
  */
 
-const { fixtures, locations, areas, sites, fixtureState, flags, policies } = schema;
+const { fixtures, locations, areas, sites, fixtureState, flags, policies, couplingGeometries } =
+	schema;
 
 type PolicyFigures = SnapshotFixture['policy'];
 
@@ -53,6 +55,7 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 			.orderBy(asc(flags.raisedAt), asc(flags.id))
 	]);
 
+	const contactsOf = await geometryContacts(rows.map((r) => r.f.id));
 	const policyIndex = indexPolicyRows(policyRows);
 	const flagsOf = new Map<number, SnapshotFixture['flags']>();
 	for (const fl of openFlags) {
@@ -84,6 +87,7 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 				lastInspectionAt: iso(state?.lastInspectionAt)
 			},
 			breakIn: breakInOf(f, state?.data as FixtureState | undefined, policy),
+			inspectionContacts: contactsOf.get(f.id) ?? null,
 			updatedAt: f.updatedAt.toISOString()
 		};
 	});
@@ -109,6 +113,29 @@ function breakInOf(
 			settleTolerance_um: policy.settleTolerance_um
 		}
 	};
+}
+
+/** Per fixture, the inspection contacts named by its latest saved geometry (if it has one). */
+async function geometryContacts(fixtureIds: number[]): Promise<Map<number, string[]>> {
+	const out = new Map<number, string[]>();
+	if (!fixtureIds.length) return out;
+	const rows = await db
+		.select({
+			fixtureId: couplingGeometries.fixtureId,
+			version: couplingGeometries.version,
+			contacts: couplingGeometries.contacts
+		})
+		.from(couplingGeometries)
+		.where(fixtureIds.length === 1 ? eq(couplingGeometries.fixtureId, fixtureIds[0]) : undefined)
+		.orderBy(asc(couplingGeometries.fixtureId), asc(couplingGeometries.version));
+	const wanted = new Set(fixtureIds);
+	for (const r of rows) {
+		if (!wanted.has(r.fixtureId)) continue;
+		const names = inspectionContactNames(r.contacts.map((c) => c.label));
+		if (names.length) out.set(r.fixtureId, names);
+		else out.delete(r.fixtureId);
+	}
+	return out;
 }
 
 /** A strong ETag over the content: same entries, same tag, on any server. */

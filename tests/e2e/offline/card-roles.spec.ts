@@ -17,6 +17,9 @@ test('an operator gets reseat, cleaning and note; a technician also the bench wo
 	await expect(page.getByRole('button', { name: 'Reseat', exact: true })).toBeVisible();
 	await expect(actions.getByRole('button')).toHaveText(['Cleaning', 'Note']);
 
+	// Leave the card first: its sync loop's request in flight could otherwise bring the operator's
+	// refreshed session cookie back after the clear.
+	await page.goto('about:blank');
 	await page.context().clearCookies();
 	await signInAs(page, 'technician');
 	await page.goto(`/f/${code}`);
