@@ -21,6 +21,7 @@ import {
 import type { Policy } from '../src/lib/domain/policy';
 import type { EventPayloadInputs, FixtureEvent } from '../src/lib/schemas/events';
 import type { FixtureType } from '../src/lib/schemas/fixture';
+import type { WearMark } from '../src/lib/schemas/wear';
 import type { DemoCondition, DemoFixture, DemoStory } from './demo-scenario';
 
 const DAY_MS = 86_400_000;
@@ -252,7 +253,8 @@ function draw(
 		const worn = Math.min(2, Math.floor(age / 9000 + rnd() * 1.6));
 		const contacts = contactsOf(f.type, hasBalls).map((contact) => {
 			const grade = Math.max(0, worn - (rnd() < 0.5 ? 1 : 0));
-			const marks = grade >= 2 ? ['fretting'] : grade === 1 && rnd() < 0.2 ? ['debris'] : [];
+			const marks: WearMark[] =
+				grade >= 2 ? ['fretting'] : grade === 1 && rnd() < 0.2 ? ['debris'] : [];
 			return { contact, grade, marks };
 		});
 		const top = Math.max(...contacts.map((x) => x.grade));
