@@ -222,11 +222,19 @@ async function breakInRuns(fixtureId: number, policy: Policy): Promise<BreakInRu
 	});
 }
 
-/** I-MR chart per measured axis, limits from the first BASELINE points shown. */
-function axisCharts(readings: ReadingPoint[]): AxisChart[] {
+/**
+ * I-MR chart per measured axis over the service readings: those logged after the last break-in
+ * completed, as the drift rule judges them (settling readings would set limits from scatter that
+ * has since gone). None while a break-in is running. Limits from the first BASELINE points shown.
+ */
+function axisCharts(readings: ReadingPoint[], state: FixtureState): AxisChart[] {
+	const b = state.breakIn;
+	if (b.required) return [];
+	const after = b.completedAt === null ? -Infinity : Date.parse(b.completedAt);
+	const service = readings.filter((r) => Date.parse(r.occurredAt) > after);
 	const charts: AxisChart[] = [];
 	for (const [axis, key] of AXES) {
-		const points = readings.filter((r) => r[key] !== null);
+		const points = service.filter((r) => r[key] !== null);
 		if (points.length < 3) continue;
 		const values = points.map((r) => r[key]!);
 		const baseline = Math.min(BASELINE, values.length);
@@ -325,7 +333,7 @@ export async function fixtureHealth(code: string): Promise<FixtureHealth | null>
 			breakInRuns: runs,
 			forecasts: trendLines(state.trend.windows, policy.repeatabilitySpec_um),
 			readings,
-			spc: axisCharts(readings)
+			spc: axisCharts(readings, state)
 		}
 	};
 }

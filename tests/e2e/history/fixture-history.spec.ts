@@ -47,7 +47,7 @@ test('the drifting demo pallet shows its history by kind, page by page, with who
 
 	// All kinds again, then the next older page: its newest entry is older than the first page's last.
 	await history.getByLabel('Show').selectOption('');
-	await expect(page).not.toHaveURL(/kind=/);
+	await expect(page).not.toHaveURL(/kind=[a-z]/);
 	const times = entries.locator('time');
 	const lastOnFirst = await times.last().getAttribute('datetime');
 	await history.getByRole('link', { name: 'Show older entries' }).click();
