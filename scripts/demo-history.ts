@@ -200,7 +200,7 @@ function draw(
 	const offset = [0, 1, 2].map(() => round2((rnd() - 0.5) * 0.6));
 	// Service R = 4σ at a third to under a half of the spec, at most 0.4 µm.
 	const sigma = Math.min(spec * (0.3 + 0.12 * rnd()), 0.4) / 4;
-	const daysPerWeek = story.daysPerWeek ?? 2 + Math.floor(rnd() * 4);
+	const daysPerWeek = story.daysPerWeek ?? 1 + Math.floor(rnd() * 3);
 	const seatingsPerDay = story.seatingsPerDay ?? 2 + Math.floor(rnd() * 8);
 	const cleanEvery = 12 + Math.floor(rnd() * 8);
 	const inspectEvery = 55 + Math.floor(rnd() * 20);

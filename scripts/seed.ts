@@ -165,29 +165,47 @@ const DEMO_DEVICES: Record<DemoRole, string> = {
 	technician: 'demo-tablet-bench'
 };
 
+/** A generated event on its way to ingest, with the code of its fixture. */
+type Outgoing = DemoEvent & { fixtureCode: string };
+
 /**
- * Sends one fixture's generated history through ingest, the path /api/sync uses: consecutive
- * events of one person go as one batch (at most a sync request's worth), received a few minutes
- * after the batch's last event, as a phone that syncs when it is back on the network would.
+ * Longest stretch of one person's entries on one fixture that goes in one batch. Ingest costs
+ * per batch, so the demo's devices sync seldom: a month at a time keeps the seed to seconds.
  */
-async function ingestHistory(
+const SYNC_SPAN_MS = 31 * 86_400_000;
+
+/**
+ * Sends the generated histories through ingest, the path /api/sync uses, fixture by fixture in
+ * time order: a person's consecutive entries on a fixture within SYNC_SPAN_MS go as one batch,
+ * received a few minutes after its last entry. One fixture per batch keeps the seed quick:
+ * ingest's cost is per batch and per fixture in it.
+ */
+async function ingestHistories(
 	actors: Record<DemoRole, Actor>,
-	fixtureCode: string,
-	events: DemoEvent[],
+	events: Outgoing[],
 	seedTime: Date
 ): Promise<number> {
 	let accepted = 0;
 	for (let i = 0; i < events.length;) {
-		const role = events[i].role;
-		let j = i;
-		while (j < events.length && events[j].role === role && j - i < MAX_EVENTS_PER_SYNC) j++;
+		const first = events[i];
+		const start = Date.parse(first.occurredAt);
+		let j = i + 1;
+		while (
+			j < events.length &&
+			j - i < MAX_EVENTS_PER_SYNC &&
+			events[j].fixtureCode === first.fixtureCode &&
+			events[j].role === first.role &&
+			Date.parse(events[j].occurredAt) - start < SYNC_SPAN_MS
+		) {
+			j++;
+		}
 		const batch = events.slice(i, j);
 		const last = Date.parse(batch[batch.length - 1].occurredAt);
 		const now = new Date(Math.min(last + 3 * 60_000, seedTime.getTime()));
 		const results = await ingestBatch(
-			actors[role],
-			DEMO_DEVICES[role],
-			batch.map(({ id, kind, occurredAt, payload }) => ({
+			actors[first.role],
+			DEMO_DEVICES[first.role],
+			batch.map(({ id, fixtureCode, kind, occurredAt, payload }) => ({
 				id,
 				fixtureCode,
 				kind,
@@ -236,8 +254,7 @@ async function seedHistory(
 		.groupBy(eventsTable.fixtureId);
 	const withEvents = new Set(counted.map((c) => c.fixtureId));
 
-	let fixtures = 0;
-	let events = 0;
+	const outgoing: Outgoing[] = [];
 	const touched: number[] = [];
 	for (const f of DEMO_FIXTURES) {
 		const row = byCode.get(codes.get(f.key)!);
@@ -247,12 +264,12 @@ async function seedHistory(
 		const entries = await effectivePolicy(row);
 		const policy = Object.fromEntries(entries.map((e) => [e.field, e.value])) as unknown as Policy;
 		const history = demoHistory(f, story, policy, seedTime, row.locationId);
-		events += await ingestHistory({ operator, technician }, row.code, history.events, seedTime);
+		for (const e of history.events) outgoing.push({ ...e, fixtureCode: row.code });
 		touched.push(row.id);
-		fixtures++;
 	}
+	const events = await ingestHistories({ operator, technician }, outgoing, seedTime);
 	await evaluateDueFlags(seedTime, touched);
-	return { fixtures, events };
+	return { fixtures: touched.length, events };
 }
 
 /** Seeds whatever of the demo scenario is missing; returns what was added. */

@@ -45,6 +45,7 @@ describe('demo codes', () => {
 });
 
 describe('demo seed', () => {
+	// A year of history for 39 fixtures goes through ingest: seconds, not milliseconds.
 	it('builds the scenario: about 40 fixtures in three areas, five accounts, a policy per type', async () => {
 		const first = await seedDemo();
 		expect(first.fixtures.added).toBe(DEMO_FIXTURES.length);
@@ -73,7 +74,7 @@ describe('demo seed', () => {
 			expect(f.repeatabilitySpec_um).toBeGreaterThanOrEqual(0.5);
 			expect(f.repeatabilitySpec_um).toBeLessThanOrEqual(2);
 		}
-	});
+	}, 120_000);
 
 	it('ends each fixture’s year of history in its story’s flags, with no state to rebuild', async () => {
 		const codes = demoCodes(DEMO_FIXTURES);
