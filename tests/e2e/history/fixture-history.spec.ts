@@ -68,7 +68,7 @@ test('the drifting demo pallet shows its history by kind, page by page, with who
 	await expect(charts.getByText(/[1-9]\d* run-rule hits?\./).first()).toBeVisible();
 	await expect(charts.getByRole('heading', { name: 'Break-in runs' })).toBeVisible();
 	await expect(
-		charts.getByRole('listitem').filter({ hasText: /40 cycles, 40 readings — rolling R/ })
+		charts.getByRole('listitem').filter({ hasText: /40 cycles,\s+40 readings —\s+rolling R/ })
 	).toBeVisible();
 	await expect(
 		charts.getByLabel(/Rolling repeatability R of each past break-in run/)
