@@ -460,3 +460,95 @@ export const DEMO_FIXTURES: DemoFixture[] = [
 		commissioned: '2021-12-06'
 	}
 ];
+
+/**
+ * Where a demo fixture's invented year of history leads (scripts/demo-history.ts generates it):
+ * the flags it shows on the day of the seed. Fixtures not listed are healthy.
+ */
+export type DemoCondition =
+	| 'healthy'
+	| 'cleaning-due-days'
+	| 'cleaning-due-cycles'
+	| 'inspection-due'
+	| 'breaking-in-part-swap'
+	| 'breaking-in-relubricated'
+	| 'drifting'
+	| 'past-rated-life'
+	| 'on-hold'
+	| 'no-history';
+
+/** Something that happened once in a fixture's year, some days before the seed. */
+export type DemoEpisode =
+	| { daysAgo: number; kind: 'part-swap'; replaced: ('balls' | 'seats')[]; note: string }
+	| { daysAgo: number; kind: 'relubricated'; lubricant: string }
+	| { daysAgo: number; kind: 'hold'; reason: string; releasedAfterDays: number; release: string }
+	| { daysAgo: number; kind: 'move'; note: string }
+	| { daysAgo: number; kind: 'note'; text: string };
+
+/** A fixture's story: the condition it ends in, how hard it is used, and its episodes. */
+export interface DemoStory {
+	condition: DemoCondition;
+	/** Working days a week it is seated (1–5); default from its key. */
+	daysPerWeek?: number;
+	/** Seatings on a day it is used; default from its key. */
+	seatingsPerDay?: number;
+	episodes?: DemoEpisode[];
+}
+
+/** The stories behind BRIEF.md's demo: most healthy, a few due, two breaking in, one drifting, one past its life. */
+export const DEMO_STORIES: Record<string, DemoStory> = {
+	'pallet-DT-1-A': {
+		condition: 'healthy',
+		episodes: [
+			{
+				daysAgo: 212,
+				kind: 'part-swap',
+				replaced: ['balls'],
+				note: 'Ceramic balls replaced after a chip was found on ball 2.'
+			}
+		]
+	},
+	'pallet-DT-2-B': { condition: 'drifting', daysPerWeek: 5, seatingsPerDay: 6 },
+	'pallet-spare-1': {
+		condition: 'breaking-in-part-swap',
+		daysPerWeek: 2,
+		seatingsPerDay: 4
+	},
+	'dt-master-pallet': {
+		condition: 'healthy',
+		episodes: [{ daysAgo: 150, kind: 'relubricated', lubricant: 'light instrument oil' }]
+	},
+	'dt-vise-1': { condition: 'cleaning-due-days', daysPerWeek: 1, seatingsPerDay: 3 },
+	'cmm2-probe-port-3': { condition: 'cleaning-due-cycles', daysPerWeek: 5, seatingsPerDay: 36 },
+	'cmm1-plate-450': { condition: 'inspection-due', daysPerWeek: 3, seatingsPerDay: 3 },
+	'ifm-breadboard-plate': { condition: 'inspection-due', daysPerWeek: 2, seatingsPerDay: 2 },
+	'cmm2-plate-300': {
+		condition: 'breaking-in-relubricated',
+		daysPerWeek: 3,
+		seatingsPerDay: 4,
+		episodes: [
+			{ daysAgo: 240, kind: 'move', note: 'Into CMM 2 from the crib, replacing the damaged plate.' }
+		]
+	},
+	'cmm-plate-spare': { condition: 'on-hold', daysPerWeek: 1, seatingsPerDay: 2 },
+	'cmm1-stylus-mount': {
+		condition: 'healthy',
+		episodes: [
+			{
+				daysAgo: 97,
+				kind: 'hold',
+				reason: 'Stylus crash during qualification; hold until the mount is inspected.',
+				releasedAfterDays: 1,
+				release: 'Inspected after the crash: no dents, repeatability re-checked.'
+			}
+		]
+	},
+	'ifm-ts-mount-a': { condition: 'past-rated-life', daysPerWeek: 5, seatingsPerDay: 5 },
+	'ifm-flat-rf-100-old': { condition: 'no-history' },
+	'cmm1-probe-port-2': {
+		condition: 'healthy',
+		episodes: [
+			{ daysAgo: 33, kind: 'note', text: 'Rack cover left off over the weekend; ports wiped.' }
+		]
+	}
+};

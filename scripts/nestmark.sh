@@ -3,7 +3,7 @@
 # servers and the app, or runs the whole test suite against a separate test database.
 #
 #   bash scripts/nestmark.sh start      build and serve the demo on http://127.0.0.1:3000
-#   bash scripts/nestmark.sh test       check, lint, vitest, build, Playwright; summary at the end
+#   bash scripts/nestmark.sh test       check, lint, vitest, build, Playwright, state rebuild; summary
 #   bash scripts/nestmark.sh db:up      start MariaDB (left running) with databases and app user
 #   bash scripts/nestmark.sh db:down    stop the project's MariaDB
 #   bash scripts/nestmark.sh db:migrate apply the Drizzle migrations to the dev database
@@ -566,6 +566,12 @@ e2e() {
 	playwright test
 }
 
+# The stored state of every fixture in the test database (the demo seed and whatever the browser
+# tests logged) must equal a fold of its history; any fixture that differs fails the run.
+rebuild_check() {
+	tsx scripts/state-rebuild.ts
+}
+
 cmd_test() {
 	local t_start
 	t_start=$(now_ms)
@@ -586,6 +592,7 @@ cmd_test() {
 	step "vite build" vite build
 	step "prepare e2e database" prepare_e2e_db
 	step "playwright (e2e)" e2e
+	step "state:rebuild (test database)" rebuild_check
 
 	# Stop the services first, so the summary is the last thing printed.
 	echo

@@ -9,22 +9,27 @@
 import { readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { inArray } from 'drizzle-orm';
+import { count, inArray } from 'drizzle-orm';
 import { generateFixtureCode, seededRandom } from '$lib/domain/fixture-code';
 import { fixtureCreateSchema } from '$lib/schemas/fixture-form';
 import { roleSchema, type Role } from '$lib/schemas/roles';
 import { closeDb, db } from '$lib/server/db';
-import { fixtures as fixturesTable } from '$lib/server/db/schema';
+import { events as eventsTable, fixtures as fixturesTable } from '$lib/server/db/schema';
 import * as fixtures from '$lib/server/fixtures';
 import type { Actor } from '$lib/server/guard';
+import { evaluateDueFlags } from '$lib/server/health';
+import { ingestBatch, MAX_EVENTS_PER_SYNC } from '$lib/server/ingest';
 import * as places from '$lib/server/places';
-import { ensureTypePolicies } from '$lib/server/policies';
+import { effectivePolicy, ensureTypePolicies } from '$lib/server/policies';
+import type { Policy } from '$lib/domain/policy';
+import { demoHistory, type DemoEvent, type DemoRole } from './demo-history';
 import { createUser, getUserByEmail } from '$lib/server/users';
 import {
 	DEMO_FIXTURES,
 	DEMO_PEOPLE,
 	DEMO_PLACES,
 	DEMO_SITE,
+	DEMO_STORIES,
 	type DemoFixture
 } from './demo-scenario';
 
@@ -70,9 +75,15 @@ function demoAccounts(): { role: Role; email: string; password: string }[] {
 		});
 }
 
-async function seedUsers(): Promise<{ admin: Actor; added: number; total: number }> {
+async function seedUsers(): Promise<{
+	admin: Actor;
+	byRole: Partial<Record<Role, Actor>>;
+	added: number;
+	total: number;
+}> {
 	let added = 0;
 	let admin: Actor | undefined;
+	const byRole: Partial<Record<Role, Actor>> = {};
 	const accounts = demoAccounts();
 	for (const a of accounts) {
 		let user = await getUserByEmail(a.email);
@@ -85,16 +96,16 @@ async function seedUsers(): Promise<{ admin: Actor; added: number; total: number
 			});
 			added++;
 		}
-		if (a.role === 'admin') {
-			admin = { id: user.id, email: user.email, name: user.name, roles: user.roles };
-		}
+		const actor = { id: user.id, email: user.email, name: user.name, roles: user.roles };
+		byRole[a.role] = actor;
+		if (a.role === 'admin') admin = actor;
 	}
 	if (!admin || !admin.roles.includes('admin')) {
 		throw new Error(
 			'scripts/demo-accounts.txt needs an admin account that still holds the admin role'
 		);
 	}
-	return { admin, added, total: accounts.length };
+	return { admin, byRole, added, total: accounts.length };
 }
 
 async function seedPlaces(admin: Actor): Promise<Map<string, number>> {
@@ -148,20 +159,136 @@ async function seedFixtures(admin: Actor, locationIds: Map<string, number>) {
 	return { added, total: DEMO_FIXTURES.length };
 }
 
+/** The demo devices: the operator's phone at the machines, the technician's bench tablet. */
+const DEMO_DEVICES: Record<DemoRole, string> = {
+	operator: 'demo-phone-floor',
+	technician: 'demo-tablet-bench'
+};
+
+/** A generated event on its way to ingest, with the code of its fixture. */
+type Outgoing = DemoEvent & { fixtureCode: string };
+
+/**
+ * Longest stretch of one person's entries on one fixture that goes in one batch. Ingest costs
+ * per batch, so the demo's devices sync seldom: a month at a time keeps the seed to seconds.
+ */
+const SYNC_SPAN_MS = 31 * 86_400_000;
+
+/**
+ * Sends the generated histories through ingest, the path /api/sync uses, fixture by fixture in
+ * time order: a person's consecutive entries on a fixture within SYNC_SPAN_MS go as one batch,
+ * received a few minutes after its last entry. One fixture per batch keeps the seed quick:
+ * ingest's cost is per batch and per fixture in it.
+ */
+async function ingestHistories(
+	actors: Record<DemoRole, Actor>,
+	events: Outgoing[],
+	seedTime: Date
+): Promise<number> {
+	let accepted = 0;
+	for (let i = 0; i < events.length;) {
+		const first = events[i];
+		const start = Date.parse(first.occurredAt);
+		let j = i + 1;
+		while (
+			j < events.length &&
+			j - i < MAX_EVENTS_PER_SYNC &&
+			events[j].fixtureCode === first.fixtureCode &&
+			events[j].role === first.role &&
+			Date.parse(events[j].occurredAt) - start < SYNC_SPAN_MS
+		) {
+			j++;
+		}
+		const batch = events.slice(i, j);
+		const last = Date.parse(batch[batch.length - 1].occurredAt);
+		const now = new Date(Math.min(last + 3 * 60_000, seedTime.getTime()));
+		const results = await ingestBatch(
+			actors[first.role],
+			DEMO_DEVICES[first.role],
+			batch.map(({ id, fixtureCode, kind, occurredAt, payload }) => ({
+				id,
+				fixtureCode,
+				kind,
+				occurredAt,
+				payload
+			})),
+			{ now }
+		);
+		for (const r of results) {
+			if (r.status === 'rejected') throw new Error(`demo event ${r.id} was rejected: ${r.error}`);
+			if (r.status === 'accepted') accepted++;
+		}
+		i = j;
+	}
+	return accepted;
+}
+
+/**
+ * A year of invented history for every demo fixture that has none yet (a fixture with any event
+ * keeps its history as it is, so a second run adds nothing), then the calendar flags as of now.
+ */
+async function seedHistory(
+	byRole: Partial<Record<Role, Actor>>,
+	seedTime: Date
+): Promise<{ fixtures: number; events: number }> {
+	const operator = byRole.operator;
+	const technician = byRole.technician;
+	if (!operator || !technician) {
+		throw new Error('scripts/demo-accounts.txt needs an operator and a technician account');
+	}
+	const codes = demoCodes(DEMO_FIXTURES);
+	const rows = await db
+		.select()
+		.from(fixturesTable)
+		.where(inArray(fixturesTable.code, [...codes.values()]));
+	const byCode = new Map(rows.map((r) => [r.code, r]));
+	const counted = await db
+		.select({ fixtureId: eventsTable.fixtureId, n: count() })
+		.from(eventsTable)
+		.where(
+			inArray(
+				eventsTable.fixtureId,
+				rows.map((r) => r.id)
+			)
+		)
+		.groupBy(eventsTable.fixtureId);
+	const withEvents = new Set(counted.map((c) => c.fixtureId));
+
+	const outgoing: Outgoing[] = [];
+	const touched: number[] = [];
+	for (const f of DEMO_FIXTURES) {
+		const row = byCode.get(codes.get(f.key)!);
+		if (!row || withEvents.has(row.id)) continue;
+		const story = DEMO_STORIES[f.key] ?? { condition: 'healthy' };
+		if (story.condition === 'no-history') continue;
+		const entries = await effectivePolicy(row);
+		const policy = Object.fromEntries(entries.map((e) => [e.field, e.value])) as unknown as Policy;
+		const history = demoHistory(f, story, policy, seedTime, row.locationId);
+		for (const e of history.events) outgoing.push({ ...e, fixtureCode: row.code });
+		touched.push(row.id);
+	}
+	const events = await ingestHistories({ operator, technician }, outgoing, seedTime);
+	await evaluateDueFlags(seedTime, touched);
+	return { fixtures: touched.length, events };
+}
+
 /** Seeds whatever of the demo scenario is missing; returns what was added. */
-export async function seedDemo() {
+export async function seedDemo(options: { now?: Date } = {}) {
+	const seedTime = options.now ?? new Date();
 	const users = await seedUsers();
 	const policies = await ensureTypePolicies(users.admin);
 	const locationIds = await seedPlaces(users.admin);
 	const fx = await seedFixtures(users.admin, locationIds);
-	return { users, policies, locations: locationIds.size, fixtures: fx };
+	const history = await seedHistory(users.byRole, seedTime);
+	return { users, policies, locations: locationIds.size, fixtures: fx, history };
 }
 
 async function main() {
 	const r = await seedDemo();
 	console.log(
 		`seed: ${r.users.added} of ${r.users.total} demo accounts added, ${r.policies} type policies added, ` +
-			`${r.locations} locations present, ${r.fixtures.added} of ${r.fixtures.total} demo fixtures added`
+			`${r.locations} locations present, ${r.fixtures.added} of ${r.fixtures.total} demo fixtures added, ` +
+			`history for ${r.history.fixtures} fixtures (${r.history.events} events) added`
 	);
 }
 

@@ -451,6 +451,14 @@ function cyclesOf(v: unknown, field: string, fallback: number | null): number {
 	return v;
 }
 
+/**
+ * The cycle of a break-in run (1-based) at which its reading `i` (0-based) of `m` was taken:
+ * readings are spread evenly over the run's `cycles`, the last one at its final cycle.
+ */
+export function readingCycle(i: number, m: number, cycles: number): number {
+	return Math.ceil(((i + 1) * cycles) / m);
+}
+
 /** Fold one event into a state this call owns (mutates `w`). */
 function step(w: FixtureState, ev: FixtureEvent, p: Policy): void {
 	const at = ev.occurredAt;
@@ -471,10 +479,9 @@ function step(w: FixtureState, ev: FixtureEvent, p: Policy): void {
 			const c = cyclesOf(ev.payload.cycles, 'payload.cycles', null);
 			const readings = ev.payload.readings ?? [];
 			const m = readings.length;
-			// Readings are spread evenly over the run, the last one at its final cycle.
 			let done = 0;
 			for (let i = 0; i < m; i++) {
-				const at_i = Math.ceil(((i + 1) * c) / m);
+				const at_i = readingCycle(i, m, c);
 				advance(w, at_i - done);
 				done = at_i;
 				addReading(w, toStored(readings[i], `payload.readings[${i}]`), p);

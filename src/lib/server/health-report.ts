@@ -8,6 +8,7 @@ import { fixtureForecast, recentRepeatability, type FixtureState } from '../doma
 import { forecastCrossing, type Forecast } from '../domain/forecast';
 import type { Policy } from '../domain/policy';
 import { individualsChart, type IndividualsChart } from '../domain/spc';
+import { breakInCurve, type BreakInCurve, type CurveReading } from '../domain/break-in-curves';
 import { normaliseFixtureCode } from '../domain/fixture-code';
 import type { FlagsQuery } from '../schemas/flags-query';
 import { db, getPool, schema } from './db';
@@ -16,6 +17,8 @@ import { initialStateFor } from './state-store';
 
 /** Readings returned for the charts (the latest ones). */
 export const CHART_READINGS = 500;
+/** Break-in runs drawn as settling curves (the latest ones). */
+export const CHART_BREAK_IN_RUNS = 8;
 /** Phase-I points for the chart limits (as the domain's drift rule uses). */
 const BASELINE = 20;
 
@@ -106,6 +109,16 @@ export interface TrendLine extends Forecast {
 	convention: 'separate' | null;
 }
 
+/** One past break-in run and its rolling R (see breakInCurve). */
+export interface BreakInRun extends BreakInCurve {
+	eventId: string;
+	occurredAt: string;
+	cycles: number;
+	readings: number;
+	/** Window of the rolling R (the policy's settling window). */
+	window: number;
+}
+
 /** Everything GET /api/fixtures/[code]/health returns. */
 export interface FixtureHealth {
 	fixture: { id: number; code: string; name: string; type: string; status: string };
@@ -128,6 +141,8 @@ export interface FixtureHealth {
 		/** Windowed R against total cycles (the windows the forecast uses). */
 		repeatability: { cycle: number; R: number }[];
 		breakIn: { cycle: number; R: number }[];
+		/** The latest break-in runs with readings, oldest first, each with its rolling R. */
+		breakInRuns: BreakInRun[];
 		forecasts: TrendLine[];
 		readings: ReadingPoint[];
 		spc: AxisChart[];
@@ -175,11 +190,51 @@ async function latestReadings(fixtureId: number): Promise<ReadingPoint[]> {
 	return out.slice(-CHART_READINGS).map((p, i) => ({ n: i + 1, ...p }));
 }
 
-/** I-MR chart per measured axis, limits from the first BASELINE points shown. */
-function axisCharts(readings: ReadingPoint[]): AxisChart[] {
+/** The latest break-in runs with readings, oldest first, with their rolling R against the spec. */
+async function breakInRuns(fixtureId: number, policy: Policy): Promise<BreakInRun[]> {
+	const [rows] = await getPool().query<RowDataPacket[]>(
+		`SELECT id, occurred_at, payload FROM events
+		  WHERE fixture_id = ? AND kind = 'break-in' AND JSON_LENGTH(payload, '$.readings') > 0
+		  ORDER BY occurred_at DESC, id DESC LIMIT ?`,
+		[fixtureId, CHART_BREAK_IN_RUNS]
+	);
+	return rows.reverse().map((r) => {
+		const payload = (typeof r.payload === 'string' ? JSON.parse(r.payload) : r.payload) as {
+			cycles: number;
+			readings: CurveReading[];
+		};
+		// The settling window of the policy: a run with fewer readings draws no curve.
+		const window = policy.settleWindow;
+		const curve = breakInCurve(
+			payload.readings,
+			payload.cycles,
+			window,
+			policy.repeatabilitySpec_um
+		);
+		return {
+			eventId: r.id,
+			occurredAt: (r.occurred_at as Date).toISOString(),
+			cycles: payload.cycles,
+			readings: payload.readings.length,
+			window,
+			...curve
+		};
+	});
+}
+
+/**
+ * I-MR chart per measured axis over the service readings: those logged after the last break-in
+ * completed, as the drift rule judges them (settling readings would set limits from scatter that
+ * has since gone). None while a break-in is running. Limits from the first BASELINE points shown.
+ */
+function axisCharts(readings: ReadingPoint[], state: FixtureState): AxisChart[] {
+	const b = state.breakIn;
+	if (b.required) return [];
+	const after = b.completedAt === null ? -Infinity : Date.parse(b.completedAt);
+	const service = readings.filter((r) => Date.parse(r.occurredAt) > after);
 	const charts: AxisChart[] = [];
 	for (const [axis, key] of AXES) {
-		const points = readings.filter((r) => r[key] !== null);
+		const points = service.filter((r) => r[key] !== null);
 		if (points.length < 3) continue;
 		const values = points.map((r) => r[key]!);
 		const baseline = Math.min(BASELINE, values.length);
@@ -221,7 +276,7 @@ export async function fixtureHealth(code: string): Promise<FixtureHealth | null>
 	const policy = (await policiesFor([fixture])).get(fixture.id)!;
 
 	const f = schema.flags;
-	const [stateRows, flagRows, readings] = await Promise.all([
+	const [stateRows, flagRows, readings, runs] = await Promise.all([
 		db
 			.select({ data: schema.fixtureState.data })
 			.from(schema.fixtureState)
@@ -232,7 +287,8 @@ export async function fixtureHealth(code: string): Promise<FixtureHealth | null>
 			.where(eq(f.fixtureId, fixture.id))
 			.orderBy(desc(sql`${f.clearedAt} IS NULL`), desc(f.raisedAt), desc(f.id))
 			.limit(60),
-		latestReadings(fixture.id)
+		latestReadings(fixture.id),
+		breakInRuns(fixture.id, policy)
 	]);
 	const state = (stateRows[0]?.data as unknown as FixtureState) ?? initialStateFor(fixture);
 	const flagOut = (r: (typeof flagRows)[number]) => ({
@@ -274,9 +330,10 @@ export async function fixtureHealth(code: string): Promise<FixtureHealth | null>
 		series: {
 			repeatability: state.trend.windows.map((w) => ({ cycle: w.cycle, R: w.R })),
 			breakIn: state.breakIn.windows.map((w) => ({ cycle: w.cycle, R: w.R })),
+			breakInRuns: runs,
 			forecasts: trendLines(state.trend.windows, policy.repeatabilitySpec_um),
 			readings,
-			spc: axisCharts(readings)
+			spc: axisCharts(readings, state)
 		}
 	};
 }

@@ -1,4 +1,6 @@
-import { desc, eq } from 'drizzle-orm';
+import { and, count, desc, eq, lt, or } from 'drizzle-orm';
+import type { EventKind } from '../schemas/events';
+import { HISTORY_CURSOR, historyCursor } from '../schemas/history-query';
 import { normaliseFixtureCode } from '../domain/fixture-code';
 import { db, schema } from './db';
 
@@ -66,5 +68,73 @@ export async function fixtureEvents(code: string, limit: number): Promise<Fixtur
 			// People who signed in by e-mail link may have no name (see STACK.md).
 			user: { id: r.userId, name: r.userName ?? r.userEmail ?? r.userId, email: r.userEmail }
 		}))
+	};
+}
+
+/** One page of a fixture's timeline. */
+export interface TimelinePage {
+	events: HistoryEntry[];
+	/** Cursor of the next older page; null when this page reaches the first entry. */
+	older: string | null;
+	/** How many events of each kind the fixture has (for the filter). */
+	kinds: Partial<Record<EventKind, number>>;
+}
+
+/**
+ * A page of `limit` events of a fixture, newest first, optionally of one kind and older than a
+ * cursor (see historyCursor).
+ */
+export async function fixtureTimeline(
+	fixtureId: number,
+	options: { kind?: EventKind; before?: string; limit: number }
+): Promise<TimelinePage> {
+	const e = schema.events;
+	const m = options.before ? HISTORY_CURSOR.exec(options.before) : null;
+	const older = m
+		? or(
+				lt(e.occurredAt, new Date(m[1])),
+				and(eq(e.occurredAt, new Date(m[1])), lt(e.id, m[2].toLowerCase()))
+			)
+		: undefined;
+	const [rows, kindRows] = await Promise.all([
+		db
+			.select({
+				id: e.id,
+				kind: e.kind,
+				occurredAt: e.occurredAt,
+				receivedAt: e.receivedAt,
+				deviceId: e.deviceId,
+				payload: e.payload,
+				userId: e.userId,
+				userName: schema.users.name,
+				userEmail: schema.users.email
+			})
+			.from(e)
+			.innerJoin(schema.users, eq(schema.users.id, e.userId))
+			.where(
+				and(eq(e.fixtureId, fixtureId), options.kind ? eq(e.kind, options.kind) : undefined, older)
+			)
+			.orderBy(desc(e.occurredAt), desc(e.id))
+			// One more than the page, to know whether an older page exists.
+			.limit(options.limit + 1),
+		db
+			.select({ kind: e.kind, n: count() })
+			.from(e)
+			.where(eq(e.fixtureId, fixtureId))
+			.groupBy(e.kind)
+	]);
+	const events = rows.slice(0, options.limit).map((r) => ({
+		id: r.id,
+		kind: r.kind,
+		occurredAt: r.occurredAt.toISOString(),
+		receivedAt: r.receivedAt.toISOString(),
+		deviceId: r.deviceId,
+		payload: r.payload,
+		user: { id: r.userId, name: r.userName ?? r.userEmail ?? r.userId, email: r.userEmail }
+	}));
+	return {
+		events,
+		older: rows.length > options.limit ? historyCursor(events[events.length - 1]) : null,
+		kinds: Object.fromEntries(kindRows.map((k) => [k.kind, k.n]))
 	};
 }

@@ -89,7 +89,7 @@ test.describe('fixture register', () => {
 		await page.getByLabel('Location').selectOption({ label: 'Interferometer bench B' });
 		await page.getByRole('button', { name: 'Save changes' }).click();
 		await expect(page.getByText('the move is recorded')).toBeVisible();
-		const entries = page.getByRole('region', { name: 'Recent entries' });
+		const entries = page.getByRole('region', { name: 'History' });
 		await expect(
 			entries.getByText(
 				'From Larchmere Precision Optics / Interferometry room / Interferometer bench A to Larchmere Precision Optics / Interferometry room / Interferometer bench B'

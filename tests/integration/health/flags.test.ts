@@ -295,8 +295,11 @@ describe('GET /api/flags and GET /api/fixtures/[code]/health', () => {
 		expect(ols.slope).toBeGreaterThan(0);
 		expect(h.series.readings).toHaveLength(70);
 		expect(h.series.readings.at(-1)).toMatchObject({ n: 70, dx: growing[39].dx, dy: null });
+		// The I-MR chart takes the 40 service readings only: the 30 before them were settling.
 		const x = h.series.spc.find((c: { axis: string }) => c.axis === 'x');
-		expect(x.values).toHaveLength(70);
+		expect(x.values).toHaveLength(40);
+		expect(x.values).toEqual(growing.map((r) => r.dx));
+		expect(x.at[0]).toBe(31);
 		expect(x.baseline).toBe(20);
 		expect(x.ucl).toBeGreaterThan(x.center);
 		expect(x.movingRanges[0]).toBeNull();

@@ -1,9 +1,12 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { count, eq } from 'drizzle-orm';
+import { and, count, eq, isNull } from 'drizzle-orm';
 import { isValidFixtureCode } from '$lib/domain/fixture-code';
 import { HEAVY_LIFT_KG } from '$lib/content/cautions';
 import { demoCodes, seedDemo } from '../../../scripts/seed';
-import { DEMO_FIXTURES } from '../../../scripts/demo-scenario';
+import { DEMO_FIXTURES, DEMO_STORIES } from '../../../scripts/demo-scenario';
+import { showsIntendedFlags } from '../../../scripts/demo-history';
+import type { FlagKind } from '$lib/domain/health';
+import { rebuildStates } from '$lib/server/health';
 import { closeDb, db, makeFixture, resetDb, schema } from '../helpers/db';
 
 async function counts() {
@@ -13,8 +16,10 @@ async function counts() {
 			| typeof schema.users
 			| typeof schema.locations
 			| typeof schema.policies
+			| typeof schema.events
 	) => (await db.select({ n: count() }).from(t))[0].n;
 	return {
+		events: await n(schema.events),
 		fixtures: await n(schema.fixtures),
 		users: await n(schema.users),
 		locations: await n(schema.locations),
@@ -40,12 +45,14 @@ describe('demo codes', () => {
 });
 
 describe('demo seed', () => {
+	// A year of history for 39 fixtures goes through ingest: seconds, not milliseconds.
 	it('builds the scenario: about 40 fixtures in three areas, five accounts, a policy per type', async () => {
 		const first = await seedDemo();
 		expect(first.fixtures.added).toBe(DEMO_FIXTURES.length);
 		expect(DEMO_FIXTURES.length).toBeGreaterThanOrEqual(36);
 		expect(DEMO_FIXTURES.length).toBeLessThanOrEqual(44);
 		expect(await counts()).toEqual({
+			events: first.history.events,
 			fixtures: DEMO_FIXTURES.length,
 			users: 5,
 			locations: 10,
@@ -60,10 +67,44 @@ describe('demo seed', () => {
 		const all = await db.select().from(schema.fixtures);
 		expect(all.filter((f) => (f.mass_kg ?? 0) >= HEAVY_LIFT_KG).length).toBeGreaterThanOrEqual(3);
 		expect(all.filter((f) => f.status === 'breaking-in')).toHaveLength(2);
+		expect(all.filter((f) => f.status === 'on-hold')).toHaveLength(1);
+		expect(first.history.fixtures).toBe(DEMO_FIXTURES.length - 1);
+		expect(first.history.events).toBeGreaterThan(3000);
 		for (const f of all) {
 			expect(f.repeatabilitySpec_um).toBeGreaterThanOrEqual(0.5);
 			expect(f.repeatabilitySpec_um).toBeLessThanOrEqual(2);
 		}
+	}, 120_000);
+
+	it('ends each fixture’s year of history in its story’s flags, with no state to rebuild', async () => {
+		const codes = demoCodes(DEMO_FIXTURES);
+		const open = await db
+			.select({ code: schema.fixtures.code, kind: schema.flags.kind })
+			.from(schema.fixtures)
+			.leftJoin(
+				schema.flags,
+				and(eq(schema.flags.fixtureId, schema.fixtures.id), isNull(schema.flags.clearedAt))
+			);
+		const kindsOf = (code: string) =>
+			open.filter((r) => r.code === code && r.kind !== null).map((r) => r.kind as FlagKind);
+		const shown = new Map<string, FlagKind[]>();
+		for (const f of DEMO_FIXTURES) {
+			const condition = DEMO_STORIES[f.key]?.condition ?? 'healthy';
+			const kinds = kindsOf(codes.get(f.key)!);
+			shown.set(f.key, kinds);
+			expect(showsIntendedFlags(condition, kinds), `${f.key} (${condition}): ${kinds}`).toBe(true);
+		}
+		// BRIEF.md's demo: most healthy, a few due, two breaking in, one drifting, one past its life.
+		const withKind = (k: FlagKind) => [...shown.values()].filter((ks) => ks.includes(k)).length;
+		expect([...shown.values()].filter((ks) => ks.length === 0).length).toBeGreaterThanOrEqual(28);
+		expect(withKind('cleaning-due')).toBe(2);
+		expect(withKind('inspection-due')).toBe(2);
+		expect(withKind('break-in-due')).toBe(2);
+		expect(withKind('drift')).toBe(1);
+		expect(withKind('replace-now')).toBe(1);
+
+		const report = await rebuildStates({ fix: false });
+		expect(report.differing).toEqual([]);
 	});
 
 	it('changes nothing on a second run and keeps what people added or changed', async () => {
@@ -80,6 +121,7 @@ describe('demo seed', () => {
 		expect(second.users.added).toBe(0);
 		expect(second.policies).toBe(0);
 		expect(second.fixtures.added).toBe(0);
+		expect(second.history).toEqual({ fixtures: 0, events: 0 });
 		expect(await counts()).toEqual(before);
 		const [renamed] = await db.select().from(schema.fixtures).where(eq(schema.fixtures.code, code));
 		expect(renamed.name).toBe('Renamed by the shop');
