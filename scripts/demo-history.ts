@@ -102,17 +102,16 @@ function contactsOf(type: FixtureType, hasBalls: boolean): string[] {
 }
 
 /**
- * Photos for a generated inspection. DEMO PHOTOS GO HERE: once attachment storage exists, upload
- * the generated pictures for the inspections `wantsPhotos` marks and return their ids; until then
- * every demo inspection carries no photo.
+ * Photo ids for a generated inspection: one close-up of the worst contact when it shows wear worth
+ * a picture (ids derived from the event's, so a re-seed names the same photos). The seed renders
+ * and uploads the pictures after the inspections are ingested (scripts/seed.ts).
  */
 export function demoInspectionPhotoIds(inspection: {
 	eventId: string;
 	fixtureKey: string;
 	wantsPhotos: boolean;
 }): string[] {
-	void inspection;
-	return [];
+	return inspection.wantsPhotos ? [demoUuid(`${inspection.eventId}/photo/1`)] : [];
 }
 
 const CLEAN_NOTES = [

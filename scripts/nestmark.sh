@@ -441,6 +441,17 @@ start_s3_fake() {
 	wait_for_port "$port" "$S3_PID" 20 || die "the fake S3 server did not start"
 }
 
+# For the seed commands (the demo's inspection photos): the fake of an 'npm start' already running
+# from this folder is used as it is; otherwise one is started for the command and stopped after it.
+s3_for_seed() {
+	if [[ "${S3_ENDPOINT:-}" =~ ^http://(127\.0\.0\.1|localhost):([0-9]+)/?$ ]] &&
+		port_in_use "${BASH_REMATCH[2]}"; then
+		say "using the S3 fake already listening on port ${BASH_REMATCH[2]}"
+		return 0
+	fi
+	start_s3_fake
+}
+
 CLEANED_UP=""
 cleanup() {
 	[[ -n "$CLEANED_UP" ]] && return 0
@@ -488,14 +499,15 @@ cmd_start() {
 	flock -n 7 || die "another 'npm start' from this folder is already running"
 	install_traps
 	db_up_if_local
-	say "applying migrations"
-	run_migrate
-	run_seed
 	if port_in_use "$PORT"; then
 		die "port $PORT is already in use; stop the other program or set PORT"
 	fi
+	# The fakes first: the demo seed stores its inspection photos through the S3 API.
 	start_mail_fake
 	start_s3_fake
+	say "applying migrations"
+	run_migrate
+	run_seed
 	say "building the app"
 	vite build
 	node build </dev/null &
@@ -641,6 +653,7 @@ cmd_db_migrate() {
 cmd_db_seed() {
 	install_traps
 	db_up_if_local
+	s3_for_seed
 	run_seed
 }
 
@@ -659,6 +672,7 @@ cmd_db_reset() {
 	say "dropping and recreating the database $DEV_DB"
 	db_recreate "$DEV_DB"
 	run_migrate
+	s3_for_seed
 	run_seed
 	say "database $DEV_DB reset to the demo scenario"
 }

@@ -23,6 +23,9 @@ import * as places from '$lib/server/places';
 import { effectivePolicy, ensureTypePolicies } from '$lib/server/policies';
 import type { Policy } from '$lib/domain/policy';
 import { demoHistory, type DemoEvent, type DemoRole } from './demo-history';
+import { renderDemoPhoto } from './demo-photos';
+import { storePhoto } from '$lib/server/attachments';
+import { resetStorageClient } from '$lib/server/storage';
 import { createUser, getUserByEmail } from '$lib/server/users';
 import {
 	DEMO_FIXTURES,
@@ -224,13 +227,44 @@ async function ingestHistories(
 }
 
 /**
+ * Renders and uploads the photos the generated inspections name: a close-up of the worst contact
+ * (a ball, or a seat's flank), marked by its grade, with a small thumbnail as a phone would send.
+ * Through the same storage path as the app's uploads; a photo already stored is left as it is.
+ */
+async function attachDemoPhotos(technician: Actor, events: Outgoing[]): Promise<number> {
+	let stored = 0;
+	for (const e of events) {
+		if (e.kind !== 'inspection') continue;
+		const payload = e.payload as {
+			contacts: { contact: string; grade: number }[];
+			photoIds?: string[];
+		};
+		const worst = payload.contacts.reduce((a, b) => (b.grade > a.grade ? b : a));
+		const subject = /ball/i.test(worst.contact) ? 'ball' : 'groove';
+		for (const [i, id] of (payload.photoIds ?? []).entries()) {
+			const seed = parseInt(id.slice(0, 8), 16) + i;
+			const photo = { subject, grade: worst.grade, seed } as const;
+			const r = await storePhoto(technician, {
+				id,
+				fixtureCode: e.fixtureCode,
+				eventId: e.id,
+				photo: renderDemoPhoto(photo, 640),
+				thumb: renderDemoPhoto(photo, 240)
+			});
+			if (r.status === 'stored') stored++;
+		}
+	}
+	return stored;
+}
+
+/**
  * A year of invented history for every demo fixture that has none yet (a fixture with any event
  * keeps its history as it is, so a second run adds nothing), then the calendar flags as of now.
  */
 async function seedHistory(
 	byRole: Partial<Record<Role, Actor>>,
 	seedTime: Date
-): Promise<{ fixtures: number; events: number }> {
+): Promise<{ fixtures: number; events: number; photos: number }> {
 	const operator = byRole.operator;
 	const technician = byRole.technician;
 	if (!operator || !technician) {
@@ -268,8 +302,9 @@ async function seedHistory(
 		touched.push(row.id);
 	}
 	const events = await ingestHistories({ operator, technician }, outgoing, seedTime);
+	const photos = await attachDemoPhotos(technician, outgoing);
 	await evaluateDueFlags(seedTime, touched);
-	return { fixtures: touched.length, events };
+	return { fixtures: touched.length, events, photos };
 }
 
 /** Seeds whatever of the demo scenario is missing; returns what was added. */
@@ -288,7 +323,7 @@ async function main() {
 	console.log(
 		`seed: ${r.users.added} of ${r.users.total} demo accounts added, ${r.policies} type policies added, ` +
 			`${r.locations} locations present, ${r.fixtures.added} of ${r.fixtures.total} demo fixtures added, ` +
-			`history for ${r.history.fixtures} fixtures (${r.history.events} events) added`
+			`history for ${r.history.fixtures} fixtures (${r.history.events} events, ${r.history.photos} photos) added`
 	);
 }
 
@@ -299,5 +334,9 @@ if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
 			console.error('seed: failed:', err instanceof Error ? err.stack : err);
 			process.exitCode = 1;
 		})
-		.finally(closeDb);
+		.finally(() => {
+			// Let go of the S3 client's sockets too, or the script would not end.
+			resetStorageClient();
+			return closeDb();
+		});
 }

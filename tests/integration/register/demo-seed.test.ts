@@ -7,7 +7,9 @@ import { DEMO_FIXTURES, DEMO_STORIES } from '../../../scripts/demo-scenario';
 import { showsIntendedFlags } from '../../../scripts/demo-history';
 import type { FlagKind } from '$lib/domain/health';
 import { rebuildStates } from '$lib/server/health';
+import { readPhoto } from '$lib/server/attachments';
 import { closeDb, db, makeFixture, resetDb, schema } from '../helpers/db';
+import { useS3 } from '../helpers/s3';
 
 async function counts() {
 	const n = async (
@@ -27,8 +29,16 @@ async function counts() {
 	};
 }
 
-beforeAll(resetDb);
-afterAll(closeDb);
+// The demo's inspection photos go through the real storage path, to the S3 fake.
+let stopS3: () => Promise<void>;
+beforeAll(async () => {
+	await resetDb();
+	stopS3 = await useS3();
+});
+afterAll(async () => {
+	await stopS3();
+	await closeDb();
+});
 
 describe('demo codes', () => {
 	it('are valid, unique and the same on every run', () => {
@@ -107,6 +117,27 @@ describe('demo seed', () => {
 		expect(report.differing).toEqual([]);
 	});
 
+	it('attaches a generated photo to each inspection that found wear worth a picture', async () => {
+		const inspections = await db
+			.select({ id: schema.events.id, payload: schema.events.payload })
+			.from(schema.events)
+			.where(eq(schema.events.kind, 'inspection'));
+		const named = inspections.flatMap((e) =>
+			((e.payload as { photoIds?: string[] }).photoIds ?? []).map((id) => ({ id, e }))
+		);
+		expect(named.length).toBeGreaterThan(0);
+		const rows = await db.select().from(schema.attachments);
+		expect(rows.map((r) => r.id).sort()).toEqual(named.map((n) => n.id).sort());
+		for (const r of rows.slice(0, 3)) {
+			expect(r.contentType).toBe('image/png');
+			expect([r.width, r.height]).toEqual([640, 480]);
+			expect(named.find((n) => n.id === r.id)!.e.id).toBe(r.eventId);
+		}
+		// Readable back through the same path the photo route uses.
+		const back = await readPhoto(rows[0].id, 'full');
+		expect(Buffer.from(back!.bytes.subarray(1, 4)).toString('ascii')).toBe('PNG');
+	});
+
 	it('changes nothing on a second run and keeps what people added or changed', async () => {
 		const code = demoCodes(DEMO_FIXTURES).get(DEMO_FIXTURES[0].key)!;
 		await db
@@ -121,7 +152,7 @@ describe('demo seed', () => {
 		expect(second.users.added).toBe(0);
 		expect(second.policies).toBe(0);
 		expect(second.fixtures.added).toBe(0);
-		expect(second.history).toEqual({ fixtures: 0, events: 0 });
+		expect(second.history).toEqual({ fixtures: 0, events: 0, photos: 0 });
 		expect(await counts()).toEqual(before);
 		const [renamed] = await db.select().from(schema.fixtures).where(eq(schema.fixtures.code, code));
 		expect(renamed.name).toBe('Renamed by the shop');
