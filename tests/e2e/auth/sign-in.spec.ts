@@ -65,9 +65,10 @@ test.describe('signing in with a password', () => {
 		const context = await browser.newContext({ javaScriptEnabled: false });
 		const page = await context.newPage();
 		await page.goto('/signin');
-		await submitPassword(page, demoAccount('technician').email, 'wrong-password-here');
+		const noScript = { javaScript: false };
+		await submitPassword(page, demoAccount('technician').email, 'wrong-password-here', noScript);
 		await expect(page.getByRole('alert')).toHaveText('⚠ E-mail or password is wrong.');
-		await signInAs(page, 'technician');
+		await signInAs(page, 'technician', undefined, noScript);
 		await context.close();
 	});
 });
