@@ -35,8 +35,14 @@ test('an expired session keeps the outbox; the entries go out under whoever sign
 	await page.waitForURL(`**/f/${code}`);
 	await expect(waiting).toHaveCount(0, { timeout: 30_000 });
 
+	// "Waiting" also goes while an entry is being sent (or before the card has drawn its list), so
+	// the server is asked until both entries are there, rather than once.
+	await expect
+		.poll(async () => (await serverEvents(page.request, code)).map((e) => e.id).sort(), {
+			timeout: 30_000
+		})
+		.toEqual([...logged].sort());
 	const events = await serverEvents(page.request, code);
-	expect(events.map((e) => e.id).sort()).toEqual([...logged].sort());
 	expect(events.every((e) => (e.user as { email?: string }).email === technician.email)).toBe(true);
 });
 
