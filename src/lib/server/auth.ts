@@ -39,7 +39,7 @@ const QUIET_ERRORS = new Set(['CredentialsSignin', 'AccessDenied', 'Verification
 let adapter: ReturnType<typeof DrizzleAdapter> | undefined;
 
 /** The client's address for throttling; falls back to a shared bucket if the platform has none. */
-function clientAddress(event: RequestEvent): string {
+export function clientAddress(event: Pick<RequestEvent, 'getClientAddress'>): string {
 	try {
 		return event.getClientAddress();
 	} catch {

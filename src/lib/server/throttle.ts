@@ -24,6 +24,22 @@ export const ADDRESS_LIMIT: ThrottleLimit = {
 	lockMs: 15 * MINUTE
 };
 
+/**
+ * Sign-in link requests per e-mail address: each one sends mail, so a handful per quarter hour is
+ * plenty for a person and stops anyone filling an inbox through the form (common practice).
+ */
+export const LINK_ACCOUNT_LIMIT: ThrottleLimit = {
+	failures: 5,
+	windowMs: 15 * MINUTE,
+	lockMs: 15 * MINUTE
+};
+/** Sign-in link requests per network address (a shop floor may share one). */
+export const LINK_ADDRESS_LIMIT: ThrottleLimit = {
+	failures: 20,
+	windowMs: 15 * MINUTE,
+	lockMs: 15 * MINUTE
+};
+
 /** Who is trying to sign in: the address typed (normalised) and the client's network address. */
 export interface Attempt {
 	email: string;
@@ -34,6 +50,11 @@ export interface Attempt {
 export const accountKey = (email: string) => `acct:${email}`.slice(0, 320);
 /** The throttle key of a network address. */
 export const addressKey = (address: string) => `addr:${address}`.slice(0, 320);
+/** The keys that count sign-in link requests (apart from password failures). */
+const linkKeys = (a: Attempt) => [`link:${accountKey(a.email)}`, `link:${addressKey(a.address)}`];
+
+const minutesUntil = (until: number, now: Date) =>
+	until > now.getTime() ? Math.ceil((until - now.getTime()) / MINUTE) : 0;
 
 /**
  * Whole minutes until the attempt may be tried again (0 = not locked). Checked before the
@@ -45,7 +66,7 @@ export async function minutesLocked(attempt: Attempt, now = new Date()): Promise
 		.from(signInThrottle)
 		.where(inArray(signInThrottle.key, [accountKey(attempt.email), addressKey(attempt.address)]));
 	const until = Math.max(0, ...rows.map((r) => r.lockedUntil?.getTime() ?? 0));
-	return until > now.getTime() ? Math.ceil((until - now.getTime()) / MINUTE) : 0;
+	return minutesUntil(until, now);
 }
 
 /** True for MariaDB's "deadlock, try again" answer. */
@@ -97,7 +118,7 @@ export async function recordFailure(attempt: Attempt, now = new Date()): Promise
 		countFailure(addressKey(attempt.address), ADDRESS_LIMIT, now)
 	]);
 	const until = Math.max(0, ...locks.map((d) => d?.getTime() ?? 0));
-	return until > now.getTime() ? Math.ceil((until - now.getTime()) / MINUTE) : 0;
+	return minutesUntil(until, now);
 }
 
 /**
@@ -107,6 +128,27 @@ export async function recordFailure(attempt: Attempt, now = new Date()): Promise
 export async function recordSuccess(attempt: Attempt): Promise<void> {
 	await db.delete(signInThrottle).where(eq(signInThrottle.key, accountKey(attempt.email)));
 	await pruneThrottle();
+}
+
+/**
+ * Counts a request for a sign-in link by e-mail and by network address. Returns 0 when the link
+ * may be sent, or the whole minutes until the next one may be asked for. The request that reaches
+ * a limit is still sent; the ones after it wait. Every address is counted alike, known or not, so
+ * the answer says nothing about who has an account.
+ */
+export async function countLinkRequest(attempt: Attempt, now = new Date()): Promise<number> {
+	const rows = await db
+		.select({ lockedUntil: signInThrottle.lockedUntil })
+		.from(signInThrottle)
+		.where(inArray(signInThrottle.key, linkKeys(attempt)));
+	const locked = minutesUntil(Math.max(0, ...rows.map((r) => r.lockedUntil?.getTime() ?? 0)), now);
+	if (locked) return locked;
+	const [byEmail, byAddress] = linkKeys(attempt);
+	await Promise.all([
+		countFailure(byEmail, LINK_ACCOUNT_LIMIT, now),
+		countFailure(byAddress, LINK_ADDRESS_LIMIT, now)
+	]);
+	return 0;
 }
 
 /** Deletes rows whose window and lock are both long over (housekeeping; safe at any time). */

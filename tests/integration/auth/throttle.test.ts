@@ -4,6 +4,9 @@ import {
 	accountKey,
 	ACCOUNT_LIMIT,
 	ADDRESS_LIMIT,
+	countLinkRequest,
+	LINK_ACCOUNT_LIMIT,
+	LINK_ADDRESS_LIMIT,
 	minutesLocked,
 	recordFailure,
 	recordSuccess
@@ -75,5 +78,33 @@ describe('per address', () => {
 		// Any account from that address waits; the same account elsewhere does not.
 		expect(await minutesLocked(attempt('innocent@example.test', '192.0.2.5'), t0)).toBe(15);
 		expect(await minutesLocked(attempt('innocent@example.test', '192.0.2.6'), t0)).toBe(0);
+	});
+});
+
+describe('sign-in link requests', () => {
+	it(`send ${LINK_ACCOUNT_LIMIT.failures} links per address typed, then ask to wait`, async () => {
+		const a = attempt('inbox@example.test', '10.2.2.2');
+		for (let i = 0; i < LINK_ACCOUNT_LIMIT.failures; i++) {
+			expect(await countLinkRequest(a, t0)).toBe(0);
+		}
+		expect(await countLinkRequest(a, at(1))).toBe(14);
+		// Another address typed from the same place is counted on its own.
+		expect(await countLinkRequest(attempt('other@example.test', '10.2.2.2'), at(1))).toBe(0);
+		// Once the lock is over, links may be asked for again.
+		expect(await countLinkRequest(a, at(16))).toBe(0);
+	});
+
+	it(`stop one network address after ${LINK_ADDRESS_LIMIT.failures} requests, whatever the addresses typed`, async () => {
+		for (let i = 0; i < LINK_ADDRESS_LIMIT.failures; i++) {
+			expect(await countLinkRequest(attempt(`n${i}@example.test`, '10.3.3.3'), t0)).toBe(0);
+		}
+		expect(await countLinkRequest(attempt('next@example.test', '10.3.3.3'), t0)).toBe(15);
+		expect(await countLinkRequest(attempt('next@example.test', '10.4.4.4'), t0)).toBe(0);
+	});
+
+	it('are counted apart from password failures', async () => {
+		const a = attempt('both@example.test', '10.5.5.5');
+		for (let i = 0; i < LINK_ACCOUNT_LIMIT.failures; i++) await countLinkRequest(a, t0);
+		expect(await minutesLocked(a, t0)).toBe(0);
 	});
 });

@@ -2,7 +2,8 @@ import { AuthError, CredentialsSignin } from '@auth/sveltekit';
 import { fail, isRedirect, redirect } from '@sveltejs/kit';
 import { z } from 'zod';
 import { linkRequestSchema, passwordSignInSchema } from '$lib/schemas/users';
-import { signIn } from '$lib/server/auth';
+import { clientAddress, signIn } from '$lib/server/auth';
+import { countLinkRequest } from '$lib/server/throttle';
 import { withForm } from './form-request';
 import { noticeFor, refusalMessage, safeNext } from './messages';
 import type { Actions, PageServerLoad } from './$types';
@@ -58,6 +59,17 @@ export const actions: Actions = {
 				form: 'link' as const,
 				email,
 				errors: z.flattenError(parsed.error).fieldErrors
+			});
+		}
+		const wait = await countLinkRequest({
+			email: parsed.data.email,
+			address: clientAddress(event)
+		});
+		if (wait) {
+			return fail(429, {
+				form: 'link' as const,
+				email,
+				message: `Several sign-in links were asked for just now. Use the newest one in your mail, or ask again in ${wait} minute${wait === 1 ? '' : 's'}.`
 			});
 		}
 		try {
