@@ -5,26 +5,10 @@
  * requirement began, so runs continued across sessions line up.
  */
 import type { ChartConfiguration } from 'chart.js';
+import { CHART_COLOURS, line, type Pt } from '$lib/client/chart-style';
 import type { RollingPoint, RunVerdict, SettleRule } from '$lib/domain/break-in-run';
 
-// The theme's colours (tailwind.config.ts): ink, brass, halt, settled, ink-faint.
-const INK = '#14312b';
-const BRASS = '#b07a1e';
-const HALT = '#a3262a';
-const SETTLED = '#1f6f4a';
-const FAINT = '#6f8781';
-
-type Pt = { x: number; y: number };
-const line = (label: string, data: Pt[], color: string, dash: number[] = []) => ({
-	label,
-	data,
-	borderColor: color,
-	backgroundColor: color,
-	borderDash: dash,
-	borderWidth: 1.5,
-	pointRadius: 0,
-	fill: false
-});
+const { ink: INK, brass: BRASS, halt: HALT, settled: SETTLED, faint: FAINT } = CHART_COLOURS;
 const flat = (x0: number, x1: number, y: number): Pt[] => [
 	{ x: x0, y },
 	{ x: x1, y }
