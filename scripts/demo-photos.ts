@@ -5,6 +5,7 @@
  * node:zlib.
  */
 import { crc32, deflateSync } from 'node:zlib';
+import { seededRandom } from '../src/lib/domain/fixture-code';
 
 /** What a demo photo shows. */
 export interface DemoPhoto {
@@ -12,18 +13,6 @@ export interface DemoPhoto {
 	/** Nestmark wear grade 0–4: how marked the contact band is. */
 	grade: number;
 	seed: number;
-}
-
-/** A small deterministic generator (mulberry32), so the same seed draws the same photo. */
-function random(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
 }
 
 function chunk(type: string, data: Buffer): Buffer {
@@ -35,7 +24,10 @@ function chunk(type: string, data: Buffer): Buffer {
 	return Buffer.concat([head, data, crc]);
 }
 
-/** Encodes 8-bit RGB pixels (row-major, 3 bytes per pixel) as a PNG. */
+/**
+ * Encodes 8-bit RGB pixels (row-major, 3 bytes per pixel) as a PNG (PNG specification: signature,
+ * IHDR, IDAT, IEND, each chunk with its CRC). Also the test photos' encoder.
+ */
 export function encodePng(width: number, height: number, rgb: Uint8Array): Buffer {
 	const ihdr = Buffer.alloc(13);
 	ihdr.writeUInt32BE(width, 0);
@@ -62,7 +54,7 @@ export function renderDemoPhoto(photo: DemoPhoto, width = 640): Buffer {
 	const w = width;
 	const h = Math.round((width * 3) / 4);
 	const rgb = new Uint8Array(w * h * 3);
-	const rnd = random(photo.seed);
+	const rnd = seededRandom(photo.seed);
 	const grade = Math.max(0, Math.min(4, photo.grade));
 	// Marks of the contact band: more and larger with the grade.
 	const specks = Array.from({ length: grade * grade * 14 }, () => ({

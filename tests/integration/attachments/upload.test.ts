@@ -1,5 +1,5 @@
 import { createHash, randomUUID } from 'node:crypto';
-import { crc32, deflateSync } from 'node:zlib';
+import { encodePng } from '../../../scripts/demo-photos';
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Actor } from '$lib/server/guard';
@@ -35,30 +35,9 @@ function call(
 	return handler(event as never);
 }
 
-/** A real PNG of w × h grey pixels (PNG specification: signature, IHDR, IDAT, IEND with CRCs). */
+/** A real PNG of w × h grey pixels. */
 function png(w: number, h: number): Uint8Array {
-	const chunk = (type: string, data: Buffer) => {
-		const len = Buffer.alloc(4);
-		len.writeUInt32BE(data.length);
-		const body = Buffer.concat([Buffer.from(type, 'latin1'), data]);
-		const crc = Buffer.alloc(4);
-		crc.writeUInt32BE(crc32(body));
-		return Buffer.concat([len, body, crc]);
-	};
-	const ihdr = Buffer.alloc(13);
-	ihdr.writeUInt32BE(w, 0);
-	ihdr.writeUInt32BE(h, 4);
-	ihdr.set([8, 0, 0, 0, 0], 8); // 8-bit greyscale
-	const rows = Buffer.alloc((w + 1) * h, 0x80);
-	for (let y = 0; y < h; y++) rows[y * (w + 1)] = 0; // filter byte
-	return new Uint8Array(
-		Buffer.concat([
-			Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
-			chunk('IHDR', ihdr),
-			chunk('IDAT', deflateSync(rows)),
-			chunk('IEND', Buffer.alloc(0))
-		])
-	);
+	return new Uint8Array(encodePng(w, h, new Uint8Array(w * h * 3).fill(0x80)));
 }
 
 function upload(
