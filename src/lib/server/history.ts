@@ -4,6 +4,43 @@ import { HISTORY_CURSOR, historyCursor } from '../schemas/history-query';
 import { normaliseFixtureCode } from '../domain/fixture-code';
 import { db, schema } from './db';
 
+/** The columns of one history entry with who logged it (list and timeline alike). */
+const ENTRY_COLUMNS = {
+	id: schema.events.id,
+	kind: schema.events.kind,
+	occurredAt: schema.events.occurredAt,
+	receivedAt: schema.events.receivedAt,
+	deviceId: schema.events.deviceId,
+	payload: schema.events.payload,
+	userId: schema.events.userId,
+	userName: schema.users.name,
+	userEmail: schema.users.email
+};
+
+/** A row selected with ENTRY_COLUMNS as a history entry. */
+function toEntry(r: {
+	id: string;
+	kind: string;
+	occurredAt: Date;
+	receivedAt: Date;
+	deviceId: string;
+	payload: unknown;
+	userId: string;
+	userName: string | null;
+	userEmail: string | null;
+}): HistoryEntry {
+	return {
+		id: r.id,
+		kind: r.kind,
+		occurredAt: r.occurredAt.toISOString(),
+		receivedAt: r.receivedAt.toISOString(),
+		deviceId: r.deviceId,
+		payload: r.payload as Record<string, unknown>,
+		// People who signed in by e-mail link may have no name (see STACK.md).
+		user: { id: r.userId, name: r.userName ?? r.userEmail ?? r.userId, email: r.userEmail }
+	};
+}
+
 /** One logged event as the history API returns it. */
 export interface HistoryEntry {
 	id: string;
@@ -38,17 +75,7 @@ export async function fixtureEvents(code: string, limit: number): Promise<Fixtur
 
 	const e = schema.events;
 	const rows = await db
-		.select({
-			id: e.id,
-			kind: e.kind,
-			occurredAt: e.occurredAt,
-			receivedAt: e.receivedAt,
-			deviceId: e.deviceId,
-			payload: e.payload,
-			userId: e.userId,
-			userName: schema.users.name,
-			userEmail: schema.users.email
-		})
+		.select(ENTRY_COLUMNS)
 		.from(e)
 		.innerJoin(schema.users, eq(schema.users.id, e.userId))
 		.where(eq(e.fixtureId, fixture.id))
@@ -58,16 +85,7 @@ export async function fixtureEvents(code: string, limit: number): Promise<Fixtur
 
 	return {
 		fixture: { code: fixture.code, name: fixture.name },
-		events: rows.map((r) => ({
-			id: r.id,
-			kind: r.kind,
-			occurredAt: r.occurredAt.toISOString(),
-			receivedAt: r.receivedAt.toISOString(),
-			deviceId: r.deviceId,
-			payload: r.payload,
-			// People who signed in by e-mail link may have no name (see STACK.md).
-			user: { id: r.userId, name: r.userName ?? r.userEmail ?? r.userId, email: r.userEmail }
-		}))
+		events: rows.map(toEntry)
 	};
 }
 
@@ -98,17 +116,7 @@ export async function fixtureTimeline(
 		: undefined;
 	const [rows, kindRows] = await Promise.all([
 		db
-			.select({
-				id: e.id,
-				kind: e.kind,
-				occurredAt: e.occurredAt,
-				receivedAt: e.receivedAt,
-				deviceId: e.deviceId,
-				payload: e.payload,
-				userId: e.userId,
-				userName: schema.users.name,
-				userEmail: schema.users.email
-			})
+			.select(ENTRY_COLUMNS)
 			.from(e)
 			.innerJoin(schema.users, eq(schema.users.id, e.userId))
 			.where(
@@ -123,15 +131,7 @@ export async function fixtureTimeline(
 			.where(eq(e.fixtureId, fixtureId))
 			.groupBy(e.kind)
 	]);
-	const events = rows.slice(0, options.limit).map((r) => ({
-		id: r.id,
-		kind: r.kind,
-		occurredAt: r.occurredAt.toISOString(),
-		receivedAt: r.receivedAt.toISOString(),
-		deviceId: r.deviceId,
-		payload: r.payload,
-		user: { id: r.userId, name: r.userName ?? r.userEmail ?? r.userId, email: r.userEmail }
-	}));
+	const events = rows.slice(0, options.limit).map(toEntry);
 	return {
 		events,
 		older: rows.length > options.limit ? historyCursor(events[events.length - 1]) : null,
