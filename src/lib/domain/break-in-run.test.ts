@@ -54,7 +54,8 @@ describe('runVerdict', () => {
 	});
 
 	it('asks for another window when R moved more than the tolerance', () => {
-		// Second window ±0.5: R = 4·√(10·0.25/9) = 2.108 µm, a change of 1.69 µm.
+		// Second window ±0.5: R = 4s with s = √(10·0.25/9) (n − 1, ISO 3534-1) = 2.108 µm, a change of
+		// 1.69 µm.
 		const run = [...alternating(10, 0.1), ...alternating(10, 0.5), ...alternating(13, 0.1)];
 		const v = runVerdict(freshBreakIn(), rule, run);
 		expect(v.windows[1].R).toBeCloseTo(4 * Math.sqrt(2.5 / 9), 12);
@@ -176,7 +177,8 @@ describe('rollingRepeatability', () => {
 		const pts = rollingRepeatability(run, 3);
 		expect(pts.map((p) => p.cycle)).toEqual([4, 5]);
 		expect(pts[0]).toEqual({ cycle: 4, s: 1, R: 4 });
-		// dx 2, 3, 3: mean 8/3, s = √(1/3) = 0.57735; dy 0, 0.5: s = 0.353553.
+		// Sample standard deviation (n − 1, ISO 3534-1): dx 2, 3, 3: mean 8/3, s = √(1/3) = 0.57735;
+		// dy 0, 0.5: s = 0.353553.
 		expect(pts[1].s).toBeCloseTo(Math.sqrt(1 / 3), 12);
 		expect(pts[1].R).toBeCloseTo(4 * Math.sqrt(1 / 3), 12);
 	});
