@@ -12,8 +12,8 @@ import { breakInCurve, type BreakInCurve, type CurveReading } from '../domain/br
 import { normaliseFixtureCode } from '../domain/fixture-code';
 import type { FlagsQuery } from '../schemas/flags-query';
 import { db, getPool, schema } from './db';
-import { loadHealthFixtures, policiesFor } from './health';
-import { initialStateFor } from './state-store';
+import { loadHealthFixtures } from './health';
+import { initialStateFor, policiesFor } from './state-store';
 
 /** Readings returned for the charts (the latest ones). */
 export const CHART_READINGS = 500;

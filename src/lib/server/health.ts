@@ -37,8 +37,6 @@ import {
 	type HealthFixture
 } from './state-store';
 
-export { policiesFor, type HealthFixture };
-
 /** Fixtures handled per transaction. */
 const CHUNK = 200;
 

@@ -82,8 +82,6 @@ export const FUTURE_TOLERANCE_MS = 10 * 60 * 1000;
 const TRANSACTION_ATTEMPTS = 4;
 
 export { MAX_EVENTS_PER_SYNC };
-// Where fold starts are defined; re-exported for the callers and tests that import them from here.
-export { initialStateFor, initialStateOptions };
 
 /** The answer for one event of a batch. */
 export interface SyncResult {

@@ -5,7 +5,8 @@ import { compareEvents, recompute, type FixtureState } from '$lib/domain/health'
 import { DEFAULT_POLICY } from '$lib/domain/policy';
 import type { FixtureEvent } from '$lib/schemas/events';
 import type { Actor } from '$lib/server/guard';
-import { ingestBatch, initialStateOptions, type SyncResult } from '$lib/server/ingest';
+import { ingestBatch, type SyncResult } from '$lib/server/ingest';
+import { initialStateOptions } from '$lib/server/state-store';
 import { generateFixtureCode } from '$lib/domain/fixture-code';
 import { getPool } from '$lib/server/db';
 import { closeDb, db, makeFixture, makeUser, resetDb, schema } from '../helpers/db';
