@@ -43,7 +43,8 @@ describe('overloadHandle', () => {
 		expect(res.headers.get('content-type')).toContain('text/html');
 		const html = await res.text();
 		expect(html).toContain('<meta http-equiv="refresh" content="2">');
-		expect(html).toContain('Nestmark is busy');
+		expect(html).toContain('Busy for a moment');
+		expect(html).toContain('Nestmark is busy right now. Try again in 2 s.');
 		expect(html).toContain('href="/fixtures?q=%22x%22"');
 	});
 

@@ -93,7 +93,7 @@ function overloadResponse(event: RequestEvent, u: Unavailable, page?: Response):
 	const again =
 		event.request.method === 'GET' ? `<meta http-equiv="refresh" content="${u.retryAfterS}">` : '';
 	const here = escapeHtml(event.url.pathname + event.url.search);
-	const html = `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">${again}<title>Busy · Nestmark</title></head><body><main><p>Error 503</p><h1>Nestmark is busy</h1><p>${escapeHtml(u.message)}</p><p><a href="${here}">Try again</a></p></main></body></html>`;
+	const html = `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">${again}<title>Busy for a moment · Nestmark</title></head><body><main><p>Error 503</p><h1>Busy for a moment</h1><p>${escapeHtml(u.message)}</p><p><a href="${here}">Try again</a></p></main></body></html>`;
 	return new Response(html, {
 		status: 503,
 		headers: { ...headers, 'content-type': 'text/html; charset=utf-8' }
