@@ -2,8 +2,10 @@ import { error, json, redirect, type Handle, type ServerInit } from '@sveltejs/k
 import { building } from '$app/environment';
 import { sequence } from '@sveltejs/kit/hooks';
 import type { Role } from '$lib/schemas/roles';
+import { apiJsonErrors, decodedPath, under } from '$lib/server/api-answers';
 import { authHandle, type SessionWithStart } from '$lib/server/auth';
 import { startDueScan } from '$lib/server/due-scan';
+import { formBodyCheck } from '$lib/server/form-body';
 import { hasRole } from '$lib/server/guard';
 import { loadSessionUser } from '$lib/server/users';
 
@@ -19,8 +21,6 @@ const ROLE_AREAS: { prefix: string; roles: readonly Role[] }[] = [
 	{ prefix: '/admin', roles: ['admin'] },
 	{ prefix: '/api/admin', roles: ['admin'] }
 ];
-
-const under = (path: string, prefix: string) => path === prefix || path.startsWith(`${prefix}/`);
 
 /** One line per request: method, path, status, time. Off with NESTMARK_REQUEST_LOG=off. */
 const requestLog: Handle = async ({ event, resolve }) => {
@@ -57,7 +57,8 @@ const locals: Handle = async ({ event, resolve }) => {
  * 403 page from the area's layout, and any other method is refused here.
  */
 const guard: Handle = async ({ event, resolve }) => {
-	const path = event.url.pathname;
+	// Judged on the path as routed: "/%61pi/sync" reaches /api/sync and is guarded as the API.
+	const path = decodedPath(event.url.pathname) ?? event.url.pathname;
 	const user = event.locals.user;
 	const area = ROLE_AREAS.find((a) => under(path, a.prefix));
 
@@ -80,7 +81,7 @@ const guard: Handle = async ({ event, resolve }) => {
 		return resolve(event);
 	}
 	if (!user) {
-		const next = path + event.url.search;
+		const next = event.url.pathname + event.url.search;
 		redirect(303, `/signin?next=${encodeURIComponent(next)}`);
 	}
 	if (area && !hasRole(user, area.roles)) {
@@ -92,7 +93,14 @@ const guard: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
-export const handle: Handle = sequence(requestLog, authHandle, locals, guard);
+export const handle: Handle = sequence(
+	requestLog,
+	apiJsonErrors,
+	authHandle,
+	locals,
+	guard,
+	formBodyCheck
+);
 
 /** Starts the calendar scan (cleaning and inspection due by days) once per server process. */
 export const init: ServerInit = () => {
