@@ -42,6 +42,7 @@ function messageFor(status: number, method: string, path: string, allow: string 
 		return 'The address cannot be decoded (a malformed percent-escape).';
 	}
 	if (status === 413) return 'The request body is larger than the server accepts.';
+	if (status === 503) return 'The server is busy; try again in a moment.';
 	if (status >= 500) return 'The server failed on this request; it was not completed.';
 	return `The request was refused (${status}).`;
 }
