@@ -7,7 +7,7 @@ import {
 	FIXTURE_TYPE_LABELS,
 	FLAG_KINDS
 } from './fixture';
-import { unicodeString } from './text';
+import { shownInput, unicodeString } from './text';
 
 /*
  * Schemas for creating, editing and listing fixtures, shared by the form pages, the JSON API and
@@ -113,7 +113,7 @@ function enumField<const T extends readonly [string, ...string[]]>(
 			error: (iss) =>
 				iss.input === undefined || iss.input === ''
 					? `Choose a ${what}.`
-					: `"${String(iss.input)}" is not a ${what}; use one of: ${values.join(', ')}.`
+					: `"${shownInput(iss.input)}" is not a ${what}; use one of: ${values.join(', ')}.`
 		})
 	);
 }

@@ -2,7 +2,7 @@ import { z } from 'zod';
 import type { Contact } from '$lib/domain/constraints';
 import { threeVeeContacts, trihedralVeeFlatContacts } from '$lib/domain/coupling-geometry';
 import { ISO76_BALL_LIMIT_MPA, MATERIALS, MATERIAL_SOURCES } from '$lib/domain/hertz';
-import { unicodeString } from './text';
+import { shownInput, unicodeString } from './text';
 
 /*
  * The coupling geometry form, shared by the page (field names, defaults) and its actions. Form
@@ -58,7 +58,7 @@ function num({ label, unit, min, gt, max, lt }: Range) {
 				? `Enter the ${label.toLowerCase()}.`
 				: typeof iss.input === 'string' && /^[+-]?\d+,\d+$/.test(iss.input)
 					? `Use a decimal point, not a comma: ${iss.input.replace(',', '.')}.`
-					: `${label}: "${String(iss.input)}" is not a number.`
+					: `${label}: "${shownInput(iss.input)}" is not a number.`
 	});
 	if (min !== undefined) n = n.min(min, `${label} must be at least ${min}${u}.`);
 	if (gt !== undefined) n = n.gt(gt, `${label} must be more than ${gt}${u}.`);

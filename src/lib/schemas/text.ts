@@ -24,3 +24,16 @@ export function unicodeString(field: string, error?: string) {
 		.string(error ? { error } : undefined)
 		.refine(isWellFormedText, { message: notUnicodeMessage(field) });
 }
+
+/**
+ * A short, safe rendering of a value someone sent, for messages: text and numbers as they are
+ * (text cut at 40 characters), anything else by its kind. String() of a deeply nested array
+ * overflows the stack, and a message must never fail.
+ */
+export function shownInput(v: unknown): string {
+	if (typeof v === 'string') return v.length > 40 ? `${v.slice(0, 40)}…` : v;
+	if (typeof v === 'number' || typeof v === 'boolean' || typeof v === 'bigint') return String(v);
+	if (v === null) return 'null';
+	if (Array.isArray(v)) return 'a list';
+	return typeof v === 'object' ? 'an object' : typeof v;
+}
