@@ -64,6 +64,8 @@ export class SyncEngine {
 	#failures = 0;
 	/** How long the server last asked to be left alone (Retry-After), until a pass succeeds. */
 	#retryAfterMs: number | null = null;
+	/** After a failure, no automatic pass before this time (ms since the epoch); 0 when none. */
+	#notBefore = 0;
 	/** Photos that could upload now (their event delivered), for the timer. */
 	#photosReady = 0;
 	#timer: ReturnType<typeof setTimeout> | undefined;
@@ -124,7 +126,8 @@ export class SyncEngine {
 	async log(event: outbox.NewEvent, replaces?: outbox.Replaces): Promise<outbox.AddResult> {
 		const result = await outbox.addEntry(event, this.#user?.name, replaces);
 		// The outbox listener refreshes the counts; here only the send is timed.
-		if (result.ok) this.#schedule(this.#holdMs + 50);
+		// A new entry does not cut short a back-off (or a wait the server asked for).
+		if (result.ok) this.#schedule(Math.max(this.#holdMs + 50, this.#notBefore - Date.now()));
 		return result;
 	}
 
@@ -137,6 +140,7 @@ export class SyncEngine {
 	syncNow(): Promise<void> {
 		this.#failures = 0;
 		this.#retryAfterMs = null;
+		this.#notBefore = 0;
 		this.signedOut = false;
 		return this.run(true);
 	}
@@ -164,6 +168,12 @@ export class SyncEngine {
 
 	async #pass(force: boolean): Promise<void> {
 		clearTimeout(this.#timer);
+		// A tab coming back into view does not cut short a back-off either; a tap on "Sync now" does.
+		const wait = this.#notBefore - Date.now();
+		if (!force && wait > 50) {
+			this.#schedule(wait);
+			return;
+		}
 		this.online = navigator.onLine;
 		if (!this.#user || (this.signedOut && !force) || !this.online) {
 			await this.#refreshCounts();
@@ -333,9 +343,13 @@ export class SyncEngine {
 
 	#scheduleNext(): void {
 		const pending = this.pending + this.#photosReady;
-		this.#schedule(
-			nextSyncDelayMs({ pending, failures: this.#failures, retryAfterMs: this.#retryAfterMs })
-		);
+		const ms = nextSyncDelayMs({
+			pending,
+			failures: this.#failures,
+			retryAfterMs: this.#retryAfterMs
+		});
+		this.#notBefore = this.#failures > 0 ? Date.now() + ms : 0;
+		this.#schedule(ms);
 	}
 
 	#schedule(ms: number): void {
