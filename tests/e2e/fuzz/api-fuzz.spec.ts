@@ -30,7 +30,7 @@ let cookie = '';
 let fixtureCode = '';
 let fixtureId = 0;
 /** Fixtures the sync fuzz logs on: several, so no history grows long enough to slow a batch. */
-let syncFixtures: { code: string; id: number }[] = [];
+const syncFixtures: { code: string; id: number }[] = [];
 /** Device time of the next in-order event; most events come in order, as from a real phone. */
 let clock = Date.now() - 40 * 86_400_000;
 let locationIds: number[] = [];
