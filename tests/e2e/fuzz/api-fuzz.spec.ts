@@ -233,7 +233,7 @@ const event = fc.constantFrom(...EVENT_KINDS).chain((kind) =>
 		{
 			id: uuid,
 			fixtureCode: fc.oneof(
-				{ weight: 30, arbitrary: fc.nat(7).map((i) => syncFixtures[i].code) },
+				{ weight: 30, arbitrary: fc.nat(15).map((i) => syncFixtures[i].code) },
 				{ weight: 1, arbitrary: text(40) }
 			),
 			kind: mostly(fc.constant(kind), 1),
@@ -336,7 +336,7 @@ test.beforeAll(async ({ browser }) => {
 		[area.insertId, 'Fuzz shelf']
 	);
 	locationIds = [location.insertId, second.insertId, 999_999_999];
-	for (let i = 0; i < 8; i++) {
+	for (let i = 0; i < 16; i++) {
 		let code: string;
 		for (;;) {
 			code = generateFixtureCode();
@@ -381,7 +381,7 @@ test.afterAll(async () => {
 const params = (numRuns: number) => ({ numRuns, seed, endOnFailure: true });
 
 test('POST /api/sync: 2xx/4xx JSON, each accepted event stored once, nothing else stored', async () => {
-	test.setTimeout(300_000);
+	test.setTimeout(600_000);
 	const totals = { requests: 0, accepted: 0, rejected: 0, refused: 0 };
 	// Per request the fuzz fixture's events are counted (an index lookup); the whole table is
 	// counted at the start and the end, so an event stored anywhere else is caught too.
@@ -419,7 +419,7 @@ test('POST /api/sync: 2xx/4xx JSON, each accepted event stored once, nothing els
 				expect(Number(rows[0].n)).toBe(accepted.length);
 			}
 		}),
-		params(runs(1500))
+		params(runs(600))
 	);
 	console.log(`fuzz /api/sync: ${JSON.stringify(totals)}`);
 	expect(await count('events')).toBe(startAll + totals.accepted);
@@ -428,7 +428,7 @@ test('POST /api/sync: 2xx/4xx JSON, each accepted event stored once, nothing els
 });
 
 test('POST /api/fixtures: 201 adds one fixture, anything refused adds none', async () => {
-	test.setTimeout(300_000);
+	test.setTimeout(600_000);
 	const totals = { requests: 0, created: 0 };
 	await fc.assert(
 		fc.asyncProperty(fixtureBody(['name', 'type', 'locationId']), async (text) => {
@@ -442,7 +442,7 @@ test('POST /api/fixtures: 201 adds one fixture, anything refused adds none', asy
 				expect(after).toBe(before + 1);
 			} else expect(after, `refused but written: ${text.slice(0, 200)}`).toBe(before);
 		}),
-		params(runs(800))
+		params(runs(500))
 	);
 	console.log(`fuzz POST /api/fixtures: ${JSON.stringify(totals)}`);
 	expect(createdFixtures.every((id) => Number.isInteger(id) && id > 0)).toBe(true);
@@ -450,7 +450,7 @@ test('POST /api/fixtures: 201 adds one fixture, anything refused adds none', asy
 });
 
 test('PATCH /api/fixtures/[code]: a refused change leaves the row and the history as they were', async () => {
-	test.setTimeout(300_000);
+	test.setTimeout(600_000);
 	const totals = { requests: 0, changed: 0 };
 	const history = async () => {
 		const [rows] = await db.query<mysql.RowDataPacket[]>(
@@ -482,14 +482,14 @@ test('PATCH /api/fixtures/[code]: a refused change leaves the row and the histor
 			expect(await row(), `refused but changed: ${text.slice(0, 200)}`).toBe(beforeRow);
 			expect(await history()).toBe(beforeEvents);
 		}),
-		params(runs(800))
+		params(runs(500))
 	);
 	console.log(`fuzz PATCH /api/fixtures: ${JSON.stringify(totals)}`);
 	expect(totals.changed).toBeGreaterThan(0);
 });
 
 test('PUT /api/attachments/[id]: a refused upload stores no row', async () => {
-	test.setTimeout(300_000);
+	test.setTimeout(600_000);
 	const totals = { requests: 0, stored: 0 };
 	const pngOf = (w: number, h: number) =>
 		new Uint8Array(encodePng(w, h, new Uint8Array(w * h * 3).fill(0x60)));
@@ -573,7 +573,7 @@ test('PUT /api/attachments/[id]: a refused upload stores no row', async () => {
 			if (status === 201) totals.stored += 1;
 			expect(after - before).toBe(status === 201 ? 1 : 0);
 		}),
-		params(runs(600))
+		params(runs(400))
 	);
 	console.log(`fuzz PUT /api/attachments: ${JSON.stringify(totals)}`);
 	expect(totals.stored).toBeGreaterThan(0);
