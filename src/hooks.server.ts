@@ -9,8 +9,10 @@ import {
 import { building } from '$app/environment';
 import { sequence } from '@sveltejs/kit/hooks';
 import type { Role } from '$lib/schemas/roles';
+import { apiJsonErrors, decodedPath, under } from '$lib/server/api-answers';
 import { authHandle, type SessionWithStart } from '$lib/server/auth';
 import { startDueScan } from '$lib/server/due-scan';
+import { formBodyCheck } from '$lib/server/form-body';
 import { hasRole } from '$lib/server/guard';
 import { overloadError, overloadHandle } from '$lib/server/overload';
 import { loadSessionUser } from '$lib/server/users';
@@ -27,8 +29,6 @@ const ROLE_AREAS: { prefix: string; roles: readonly Role[] }[] = [
 	{ prefix: '/admin', roles: ['admin'] },
 	{ prefix: '/api/admin', roles: ['admin'] }
 ];
-
-const under = (path: string, prefix: string) => path === prefix || path.startsWith(`${prefix}/`);
 
 /** One line per request: method, path, status, time. Off with NESTMARK_REQUEST_LOG=off. */
 const requestLog: Handle = async ({ event, resolve }) => {
@@ -70,7 +70,8 @@ const locals: Handle = async ({ event, resolve }) => {
  * 403 page from the area's layout, and any other method is refused here.
  */
 const guard: Handle = async ({ event, resolve }) => {
-	const path = event.url.pathname;
+	// Judged on the path as routed: "/%61pi/sync" reaches /api/sync and is guarded as the API.
+	const path = decodedPath(event.url.pathname) ?? event.url.pathname;
 	const user = event.locals.user;
 	const area = ROLE_AREAS.find((a) => under(path, a.prefix));
 
@@ -93,7 +94,7 @@ const guard: Handle = async ({ event, resolve }) => {
 		return resolve(event);
 	}
 	if (!user) {
-		const next = path + event.url.search;
+		const next = event.url.pathname + event.url.search;
 		redirect(303, `/signin?next=${encodeURIComponent(next)}`);
 	}
 	if (area && !hasRole(user, area.roles)) {
@@ -105,7 +106,17 @@ const guard: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
-export const handle: Handle = sequence(requestLog, overloadHandle, authHandle, locals, guard);
+// apiJsonErrors stays outside overloadHandle: an overload thrown by the session lookup must reach
+// overloadHandle (503 + Retry-After) before anything turns it into a JSON 500.
+export const handle: Handle = sequence(
+	requestLog,
+	apiJsonErrors,
+	overloadHandle,
+	authHandle,
+	locals,
+	guard,
+	formBodyCheck
+);
 
 /** Overloads (database pool saturated or unreachable) become 503 + Retry-After; see overload.ts. */
 export const handleError: HandleServerError = ({ error, event, status, message }) => {

@@ -200,3 +200,22 @@ describe('register query', () => {
 		expect(registerQueryString(registerQuerySchema.parse({}))).toBe('');
 	});
 });
+
+describe('what a JSON body can carry', () => {
+	it('refuses text that is not valid Unicode, naming the field', () => {
+		const r = fixturePatchSchema.safeParse({ name: 'Pallet \ud800', notes: 'x\udc00' });
+		expect(r.error?.issues.map((i) => [i.path.join('.'), i.message])).toEqual([
+			['name', 'The name contains text that is not valid Unicode (a lone surrogate); retype it.'],
+			['notes', 'Notes contains text that is not valid Unicode (a lone surrogate); retype it.']
+		]);
+	});
+
+	it('answers a deeply nested value with a message, not a stack overflow', () => {
+		const deep = JSON.parse('['.repeat(5000) + ']'.repeat(5000));
+		const r = fixturePatchSchema.safeParse({ type: deep, status: { a: 1 } });
+		expect(r.error?.issues.map((i) => i.message)).toEqual([
+			'"a list" is not a fixture type; use one of: three-vee, trihedral-vee-flat, pallet, vise, plate, other.',
+			'"an object" is not a status; use one of: in-service, breaking-in, on-hold, retired.'
+		]);
+	});
+});

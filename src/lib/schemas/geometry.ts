@@ -2,6 +2,7 @@ import { z } from 'zod';
 import type { Contact } from '$lib/domain/constraints';
 import { threeVeeContacts, trihedralVeeFlatContacts } from '$lib/domain/coupling-geometry';
 import { ISO76_BALL_LIMIT_MPA, MATERIALS, MATERIAL_SOURCES } from '$lib/domain/hertz';
+import { shownInput, unicodeString } from './text';
 
 /*
  * The coupling geometry form, shared by the page (field names, defaults) and its actions. Form
@@ -57,7 +58,7 @@ function num({ label, unit, min, gt, max, lt }: Range) {
 				? `Enter the ${label.toLowerCase()}.`
 				: typeof iss.input === 'string' && /^[+-]?\d+,\d+$/.test(iss.input)
 					? `Use a decimal point, not a comma: ${iss.input.replace(',', '.')}.`
-					: `${label}: "${String(iss.input)}" is not a number.`
+					: `${label}: "${shownInput(iss.input)}" is not a number.`
 	});
 	if (min !== undefined) n = n.min(min, `${label} must be at least ${min}${u}.`);
 	if (gt !== undefined) n = n.gt(gt, `${label} must be more than ${gt}${u}.`);
@@ -77,7 +78,7 @@ const contactRow = z.object({
 	nx: num({ label: 'Normal x' }),
 	ny: num({ label: 'Normal y' }),
 	nz: num({ label: 'Normal z' }),
-	label: z.string().trim().max(60, 'A label can be at most 60 characters.').optional()
+	label: unicodeString('A label').trim().max(60, 'A label can be at most 60 characters.').optional()
 });
 
 /** Everything the geometry form sends. */

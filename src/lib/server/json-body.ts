@@ -1,9 +1,54 @@
-/** The body could not be read as JSON within the limit; `message` is safe to show the client. */
+/**
+ * The body could not be read as JSON within the limit; `message` is safe to show the client.
+ * `drained` says whether the rest of the body was read off the connection: when it was not, the
+ * answer must close the connection (`Connection: close`), or the unread bytes would be taken for
+ * the next request on a kept-alive connection.
+ */
 export class BodyError extends Error {
-	constructor(message: string) {
+	constructor(
+		message: string,
+		readonly drained = true
+	) {
 		super(message);
 		this.name = 'BodyError';
 	}
+}
+
+/** Headers for an answer to a BodyError: close the connection when the body is still on it. */
+export function bodyErrorHeaders(err: BodyError): Record<string, string> {
+	return err.drained ? {} : { connection: 'close' };
+}
+
+/** At most this much of a refused body is read and thrown away to keep the connection usable. */
+export const DRAIN_LIMIT_BYTES = 16 * 1024 * 1024;
+
+/**
+ * Reads what is left of a body and throws it away, up to `max` bytes; true when the body was read
+ * to its end (or the platform refused it and discards the rest itself). Cancelling the stream
+ * instead would destroy the socket, and the client would see a reset rather than our answer.
+ */
+export async function discardBody(
+	reader: ReadableStreamDefaultReader<Uint8Array>,
+	max = DRAIN_LIMIT_BYTES
+): Promise<boolean> {
+	let read = 0;
+	try {
+		for (;;) {
+			const { done, value } = await reader.read();
+			if (done) return true;
+			read += value.byteLength;
+			if (read > max) return false;
+		}
+	} catch (err) {
+		// adapter-node's BODY_SIZE_LIMIT: it stops passing data on, and Node discards the rest.
+		return (err as { status?: number }).status === 413;
+	}
+}
+
+/** Throws the rest of a request's body away (see discardBody); true when the connection stays usable. */
+export async function discardRequestBody(request: Request): Promise<boolean> {
+	if (!request.body || request.bodyUsed) return true;
+	return discardBody(request.body.getReader());
 }
 
 /**
@@ -12,11 +57,13 @@ export class BodyError extends Error {
  * without a length (chunked) or with a wrong one.
  */
 export async function readJsonBody(request: Request, limit: number): Promise<unknown> {
-	const tooLarge = () =>
-		new BodyError(`The request body is larger than the limit of ${formatBytes(limit)}.`);
+	const tooLarge = (drained: boolean) =>
+		new BodyError(`The request body is larger than the limit of ${formatBytes(limit)}.`, drained);
 
 	const declared = request.headers.get('content-length');
-	if (declared !== null && Number(declared) > limit) throw tooLarge();
+	if (declared !== null && Number(declared) > limit) {
+		throw tooLarge(await discardRequestBody(request));
+	}
 	if (!request.body) throw new BodyError('The request has no body; send a JSON object.');
 
 	const reader = request.body.getReader();
@@ -31,15 +78,12 @@ export async function readJsonBody(request: Request, limit: number): Promise<unk
 			const status = (err as { status?: number }).status;
 			if (status === 413)
 				throw new BodyError('The request body is larger than the server accepts.');
-			throw new BodyError('The request body could not be read to the end.');
+			throw new BodyError('The request body could not be read to the end.', false);
 		}
 		const { done, value } = chunk;
 		if (done) break;
 		received += value.byteLength;
-		if (received > limit) {
-			await reader.cancel();
-			throw tooLarge();
-		}
+		if (received > limit) throw tooLarge(await discardBody(reader));
 		chunks.push(value);
 	}
 

@@ -1,7 +1,7 @@
 import { json } from '@sveltejs/kit';
 import { apiUser } from '$lib/server/guard';
 import * as ingest from '$lib/server/ingest';
-import { BodyError, readJsonBody } from '$lib/server/json-body';
+import { BodyError, bodyErrorHeaders, readJsonBody } from '$lib/server/json-body';
 import type { RequestHandler } from './$types';
 
 /**
@@ -16,7 +16,9 @@ export const POST: RequestHandler = async ({ locals, request }) => {
 	try {
 		body = await readJsonBody(request, ingest.SYNC_BODY_LIMIT_BYTES);
 	} catch (err) {
-		if (err instanceof BodyError) return json({ error: err.message }, { status: 400 });
+		if (err instanceof BodyError) {
+			return json({ error: err.message }, { status: 400, headers: bodyErrorHeaders(err) });
+		}
 		throw err;
 	}
 

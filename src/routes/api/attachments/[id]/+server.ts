@@ -1,6 +1,7 @@
 import { json } from '@sveltejs/kit';
 import * as attachments from '$lib/server/attachments';
 import { apiUser } from '$lib/server/guard';
+import { discardRequestBody } from '$lib/server/json-body';
 import { photoIdSchema, photoUploadFieldsSchema } from '$lib/schemas/attachments';
 import { photoResponse } from './photo-response';
 import type { RequestHandler } from './$types';
@@ -30,7 +31,14 @@ export const PUT: RequestHandler = async ({ locals, params, request }) => {
 	const declared = Number(request.headers.get('content-length') ?? 0);
 	const limit = attachments.UPLOAD_BODY_LIMIT_BYTES;
 	const tooLarge = `The upload is larger than the limit of ${attachments.PHOTO_LIMIT_BYTES / 1024 / 1024} MB per photo.`;
-	if (declared > limit) return bad(tooLarge, { file: tooLarge });
+	if (declared > limit) {
+		// Read the refused body off the connection, so the next request on it is understood.
+		const drained = await discardRequestBody(request);
+		return json(
+			{ error: tooLarge, fields: { file: tooLarge } },
+			{ status: 400, headers: drained ? {} : { connection: 'close' } }
+		);
+	}
 
 	let form: FormData;
 	try {
