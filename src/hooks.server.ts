@@ -2,9 +2,10 @@ import { error, json, redirect, type Handle, type ServerInit } from '@sveltejs/k
 import { building } from '$app/environment';
 import { sequence } from '@sveltejs/kit/hooks';
 import type { Role } from '$lib/schemas/roles';
-import { authHandle, type SessionWithStart } from '$lib/server/auth';
+import { authHandle, type SessionWithId } from '$lib/server/auth';
 import { startDueScan } from '$lib/server/due-scan';
 import { hasRole } from '$lib/server/guard';
+import { pinOrigin } from '$lib/server/origin-handle';
 import { loadSessionUser } from '$lib/server/users';
 
 /** API paths anyone may call without signing in. */
@@ -45,9 +46,9 @@ const locals: Handle = async ({ event, resolve }) => {
 	event.cookies.set = (name, value, opts) =>
 		set(name, value, { ...opts, secure: opts.secure ?? secure });
 
-	const session: SessionWithStart | null = await event.locals.auth();
+	const session: SessionWithId | null = await event.locals.auth();
 	const id = session?.user?.id;
-	event.locals.user = id ? await loadSessionUser(id, session?.signedInAt) : null;
+	event.locals.user = id ? await loadSessionUser(id, session?.sessionId) : null;
 	return resolve(event);
 };
 
@@ -92,7 +93,7 @@ const guard: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
-export const handle: Handle = sequence(requestLog, authHandle, locals, guard);
+export const handle: Handle = sequence(requestLog, pinOrigin, authHandle, locals, guard);
 
 /** Starts the calendar scan (cleaning and inspection due by days) once per server process. */
 export const init: ServerInit = () => {

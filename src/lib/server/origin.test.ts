@@ -1,5 +1,11 @@
 import { afterEach, describe, expect, it } from 'vitest';
-import { pinOriginHeaders, publicOrigin, sameOriginRedirect } from './origin';
+import {
+	isHttpUrl,
+	pinOriginHeaders,
+	publicOrigin,
+	sameOriginRedirect,
+	withoutBadCallbackCookies
+} from './origin';
 
 const ORIGIN = 'https://nestmark.larchmere.example';
 const saved = { origin: process.env.ORIGIN, env: process.env.NESTMARK_ENV };
@@ -61,6 +67,28 @@ describe('sameOriginRedirect', () => {
 			undefined
 		]) {
 			expect(sameOriginRedirect(raw, ORIGIN)).toBe(`${ORIGIN}/`);
+		}
+	});
+});
+
+describe('withoutBadCallbackCookies', () => {
+	it('drops callback-url cookies that name no place on the site, and keeps the rest', () => {
+		const session = 'authjs.session-token=abc.def';
+		for (const bad of ['x', 'http://[', '%E0%A4%A', 'https%3A%2F%2Fevil.example%2F', '']) {
+			const out = withoutBadCallbackCookies(`${session}; authjs.callback-url=${bad}`, ORIGIN);
+			expect(out).toEqual({ header: session, dropped: ['authjs.callback-url'] });
+		}
+		const good = `${session}; __Secure-authjs.callback-url=${encodeURIComponent(`${ORIGIN}/x`)}`;
+		expect(withoutBadCallbackCookies(good, ORIGIN)).toEqual({ header: good, dropped: [] });
+	});
+});
+
+describe('isHttpUrl', () => {
+	it('accepts paths and http(s) URLs, whatever their site, and nothing else', () => {
+		expect(isHttpUrl('/x', ORIGIN)).toBe(true);
+		expect(isHttpUrl('https://evil.example/', ORIGIN)).toBe(true);
+		for (const bad of ['x', 'http://[', 'javascript:alert(1)', '']) {
+			expect(isHttpUrl(bad, ORIGIN)).toBe(false);
 		}
 	});
 });
