@@ -21,7 +21,11 @@ export const pinOrigin: Handle = ({ event, resolve }) => {
 		const clean = withoutBadCallbackCookies(cookie, origin);
 		if (clean.dropped.length) {
 			headers.set('cookie', clean.header);
-			for (const name of clean.dropped) event.cookies.delete(name, { path: '/' });
+			// Secure only where the browser would keep it: plain http on a shop LAN is allowed.
+			const https = event.url.protocol === 'https:';
+			for (const name of clean.dropped) {
+				event.cookies.delete(name, { path: '/', secure: https || name.startsWith('__Secure-') });
+			}
 		}
 	}
 
