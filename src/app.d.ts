@@ -9,7 +9,14 @@ declare global {
 		}
 		interface Locals {
 			/** The signed-in user, or null; filled by the auth handle in hooks.server.ts. */
-			user: { id: string; email: string; name: string; roles: Role[] } | null;
+			user: {
+				id: string;
+				email: string;
+				name: string;
+				roles: Role[];
+				/** The row in sign_in_sessions this request's cookie names. */
+				sessionId?: string;
+			} | null;
 		}
 	}
 }

@@ -10,10 +10,11 @@ import { building } from '$app/environment';
 import { sequence } from '@sveltejs/kit/hooks';
 import type { Role } from '$lib/schemas/roles';
 import { apiJsonErrors, decodedPath, under } from '$lib/server/api-answers';
-import { authHandle, type SessionWithStart } from '$lib/server/auth';
+import { authHandle, type SessionWithId } from '$lib/server/auth';
 import { startDueScan } from '$lib/server/due-scan';
 import { formBodyCheck } from '$lib/server/form-body';
 import { hasRole } from '$lib/server/guard';
+import { pinOrigin } from '$lib/server/origin-handle';
 import { overloadError, overloadHandle } from '$lib/server/overload';
 import { loadSessionUser } from '$lib/server/users';
 
@@ -58,9 +59,9 @@ const locals: Handle = async ({ event, resolve }) => {
 		event.locals.user = null;
 		return resolve(event);
 	}
-	const session: SessionWithStart | null = await event.locals.auth();
+	const session: SessionWithId | null = await event.locals.auth();
 	const id = session?.user?.id;
-	event.locals.user = id ? await loadSessionUser(id, session?.signedInAt) : null;
+	event.locals.user = id ? await loadSessionUser(id, session?.sessionId) : null;
 	return resolve(event);
 };
 
@@ -112,6 +113,7 @@ export const handle: Handle = sequence(
 	requestLog,
 	apiJsonErrors,
 	overloadHandle,
+	pinOrigin,
 	authHandle,
 	locals,
 	guard,

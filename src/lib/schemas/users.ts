@@ -58,3 +58,15 @@ export const setRolesSchema = z.object({ userId: z.string().min(1).max(255), rol
 
 /** A form that names one person. */
 export const userIdSchema = z.object({ userId: z.string().min(1).max(255) });
+
+/** The "change your password" form; `current` is empty for people who have none yet. */
+export const changePasswordSchema = z
+	.object({
+		current: z.string().max(200, 'That password is too long.'),
+		next: newPasswordSchema,
+		confirm: z.string()
+	})
+	.refine((v) => v.next === v.confirm, {
+		path: ['confirm'],
+		message: 'The two new passwords differ.'
+	});

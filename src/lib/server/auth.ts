@@ -8,20 +8,15 @@ import { DrizzleAdapter } from '@auth/drizzle-adapter';
 import Credentials from '@auth/sveltekit/providers/credentials';
 import Nodemailer from '@auth/sveltekit/providers/nodemailer';
 import type { RequestEvent } from '@sveltejs/kit';
-import { passwordSignInSchema } from '../schemas/users';
 import { signInMail } from './auth-mail';
 import { getDb } from './db';
 import { accounts, sessions, users, verificationTokens } from './db/schema';
 import { mailFrom, sendMail } from './mail';
+import { publicOrigin, sameOriginRedirect } from './origin';
+import { checkPasswordSignIn, type RefusalCode } from './password-sign-in';
+import { revokeSession, SESSION_MAX_AGE_S, startSession } from './sessions';
 import { authSecret, EMAIL_PROVIDER_ID, SIGN_IN_LINK_MAX_AGE_S } from './sign-in-link';
-import { minutesLocked, recordFailure, recordSuccess } from './throttle';
-import { findForSignIn, isActiveEmail, verifyPassword } from './users';
-
-/**
- * Why a password sign-in was refused, as the `code` Auth.js passes on. Codes never say whether
- * an account exists: a deactivated account is named only after its correct password.
- */
-export type RefusalCode = 'wrong' | 'inactive' | `locked-${number}`;
+import { isActiveEmail } from './users';
 
 class SignInRefused extends CredentialsSignin {
 	constructor(code: RefusalCode) {
@@ -30,8 +25,8 @@ class SignInRefused extends CredentialsSignin {
 	}
 }
 
-/** The session as the handle reads it: Auth.js's, plus when it began (ms). */
-export type SessionWithStart = Session & { signedInAt?: number };
+/** The session as the handle reads it: Auth.js's, plus the id of its row in sign_in_sessions. */
+export type SessionWithId = Session & { sessionId?: string };
 
 /** Errors that are expected answers to people, not faults worth a stack trace in the log. */
 const QUIET_ERRORS = new Set(['CredentialsSignin', 'AccessDenied', 'Verification']);
@@ -49,24 +44,9 @@ export function clientAddress(event: Pick<RequestEvent, 'getClientAddress'>): st
 
 /** Checks e-mail + password with throttling; returns the user or throws a SignInRefused. */
 async function authorizePassword(raw: unknown, address: string) {
-	const parsed = passwordSignInSchema.safeParse(raw);
-	if (!parsed.success) throw new SignInRefused('wrong');
-	const { email, password } = parsed.data;
-	const attempt = { email, address };
-
-	const locked = await minutesLocked(attempt);
-	if (locked) throw new SignInRefused(`locked-${locked}`);
-
-	const row = await findForSignIn(email);
-	// verifyPassword spends one bcrypt comparison even without a hash (timing-equalised).
-	const ok = await verifyPassword(password, row?.passwordHash ?? null);
-	if (!ok || !row?.email) {
-		const lock = await recordFailure(attempt);
-		throw new SignInRefused(lock ? `locked-${lock}` : 'wrong');
-	}
-	if (!row.active) throw new SignInRefused('inactive');
-	await recordSuccess(attempt);
-	return { id: row.id, email: row.email, name: row.name || row.email };
+	const result = await checkPasswordSignIn(raw, address);
+	if (!result.ok) throw new SignInRefused(result.code);
+	return result.user;
 }
 
 /** The Auth.js configuration for one request (the credentials check needs the client address). */
@@ -77,7 +57,9 @@ function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 		sessionsTable: sessions,
 		verificationTokensTable: verificationTokens
 	});
-	const verifyRequestUrl = `${event.url.origin}/auth/verify-request?provider=${EMAIL_PROVIDER_ID}&type=email`;
+	// Never the request's Host or X-Forwarded-Host (see $lib/server/origin).
+	const origin = publicOrigin(event.url.origin);
+	const verifyRequestUrl = `${origin}/auth/verify-request?provider=${EMAIL_PROVIDER_ID}&type=email`;
 
 	return {
 		adapter,
@@ -85,7 +67,7 @@ function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 		trustHost: true,
 		basePath: '/auth',
 		// Credentials sign-in works only with JWT sessions in Auth.js.
-		session: { strategy: 'jwt' },
+		session: { strategy: 'jwt', maxAge: SESSION_MAX_AGE_S },
 		pages: { signIn: '/signin', error: '/signin', verifyRequest: '/signin/check-mail' },
 		providers: [
 			Credentials({
@@ -105,6 +87,11 @@ function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 				async sendVerificationRequest({ identifier, url }) {
 					// The signIn callback already stops unknown addresses; this is the second lock.
 					if (!(await isActiveEmail(identifier))) return;
+					// Auth.js built `url` from headers pinned to ORIGIN (pinOrigin in hooks); put it
+					// on ORIGIN once more, so no header handling upstream can ever change where a
+					// genuine token is sent.
+					const link = new URL(url);
+					url = `${origin}${link.pathname}${link.search}`;
 					// Not awaited: an unknown address gets no mail, so waiting for the mail server
 					// would let response times tell known addresses from unknown ones.
 					sendMail({ to: identifier, ...signInMail(url, SIGN_IN_LINK_MAX_AGE_S) }).catch((e) =>
@@ -113,7 +100,20 @@ function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 				}
 			})
 		],
+		events: {
+			// Auth.js's own sign-out (POST /auth/signout) ends the session's row too; the sign-out
+			// page revokes it itself first, so a database failure there is not swallowed.
+			async signOut(message) {
+				const sid = 'token' in message ? message.token?.sid : undefined;
+				if (typeof sid === 'string') await revokeSession(sid);
+			}
+		},
 		callbacks: {
+			// Auth.js's default throws on a malformed callback URL (a tampered cookie gave a 500
+			// on every request) and trusts the request's origin; ours does neither.
+			redirect({ url }) {
+				return sameOriginRedirect(url, origin);
+			},
 			async signIn({ user, account, email }) {
 				if (account?.provider === 'credentials') return true; // authorizePassword decided
 				if (account?.type !== 'email') return false;
@@ -122,11 +122,11 @@ function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 				if (email?.verificationRequest) return active || verifyRequestUrl;
 				return active; // a link clicked after deactivation no longer signs in
 			},
-			jwt({ token, user }) {
-				if (user) {
-					// Kept through every refresh of the token (unlike iat), so the handle can refuse
-					// sessions that began before a deactivation.
-					token.signedInAt = Date.now();
+			async jwt({ token, user }) {
+				if (user?.id) {
+					// A row per sign-in, checked on every request: sign-out, password and role
+					// changes and deactivation end it (see $lib/server/sessions).
+					token.sid = await startSession(user.id);
 					token.sub = user.id;
 					token.email = user.email;
 					// People who only ever signed in by link may have no name.
@@ -136,9 +136,7 @@ function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 			},
 			session({ session, token }) {
 				if (token.sub) session.user.id = token.sub;
-				if (typeof token.signedInAt === 'number') {
-					(session as SessionWithStart).signedInAt = token.signedInAt;
-				}
+				if (typeof token.sid === 'string') (session as SessionWithId).sessionId = token.sid;
 				session.user.email = token.email ?? session.user.email;
 				session.user.name = token.name || token.email || session.user.name;
 				return session;

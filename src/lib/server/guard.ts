@@ -7,6 +7,8 @@ export interface Actor {
 	email: string;
 	name: string;
 	roles: Role[];
+	/** The sign-in session the request came with (none for scripts such as the seed). */
+	sessionId?: string;
 }
 
 /** Thrown by services when the actor lacks a role; routes turn it into 403. */

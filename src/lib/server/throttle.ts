@@ -1,4 +1,4 @@
-import { and, eq, inArray, isNull, lt, or, sql } from 'drizzle-orm';
+import { and, eq, inArray, isNull, lt, or, sql, type SQL } from 'drizzle-orm';
 import { db } from './db';
 import { signInThrottle } from './db/schema';
 
@@ -11,8 +11,12 @@ export interface ThrottleLimit {
 
 const MINUTE = 60_000;
 
-/** Per account: a person mistyping a few times is fine; guessing is not (common practice). */
-export const ACCOUNT_LIMIT: ThrottleLimit = {
+/**
+ * Per account *and* network address: a person mistyping a few times is fine; guessing is not
+ * (common practice). Keyed by the pair, so failures from one place never lock the account
+ * for its owner somewhere else.
+ */
+export const PAIR_LIMIT: ThrottleLimit = {
 	failures: 5,
 	windowMs: 15 * MINUTE,
 	lockMs: 15 * MINUTE
@@ -23,6 +27,20 @@ export const ADDRESS_LIMIT: ThrottleLimit = {
 	windowMs: 15 * MINUTE,
 	lockMs: 15 * MINUTE
 };
+
+/**
+ * Per account from everywhere: guessing spread over many addresses. This limit only delays —
+ * after `freeFailures` within the window each attempt waits a while after the last failure,
+ * doubling from `firstDelayMs` up to `maxDelayMs` — so nobody can lock an account's owner out,
+ * at worst make them wait a minute, while a spread-out guesser gets about one try a minute
+ * (common practice: exponential back-off with a cap).
+ */
+export const ACCOUNT_DELAY = {
+	freeFailures: 10,
+	windowMs: 60 * MINUTE,
+	firstDelayMs: 1_000,
+	maxDelayMs: 60_000
+} as const;
 
 /**
  * Sign-in link requests per e-mail address: each one sends mail, so a handful per quarter hour is
@@ -46,8 +64,10 @@ export interface Attempt {
 	address: string;
 }
 
-/** The throttle key of an account. */
+/** The throttle key of an account (its delay, counted from every address). */
 export const accountKey = (email: string) => `acct:${email}`.slice(0, 320);
+/** The throttle key of an account tried from one network address (its lock). */
+export const pairKey = (a: Attempt) => `pair:${a.address}|${a.email}`.slice(0, 320);
 /** The throttle key of a network address. */
 export const addressKey = (address: string) => `addr:${address}`.slice(0, 320);
 /** The keys that count sign-in link requests (apart from password failures). */
@@ -56,17 +76,44 @@ const linkKeys = (a: Attempt) => [`link:${accountKey(a.email)}`, `link:${address
 const minutesUntil = (until: number, now: Date) =>
 	until > now.getTime() ? Math.ceil((until - now.getTime()) / MINUTE) : 0;
 
+/** Whether a password attempt may be checked now, and if not, how long to wait. */
+export type Admission =
+	{ kind: 'open' } | { kind: 'locked'; minutes: number } | { kind: 'wait'; seconds: number };
+
 /**
- * Whole minutes until the attempt may be tried again (0 = not locked). Checked before the
- * password, so a locked account costs no hashing and says nothing about whether it exists.
+ * Whether the attempt may be tried now: a lock of the (account, address) pair or of the address
+ * (whole minutes), or the account's delay (seconds). Checked before the password, so a refused
+ * attempt costs no hashing and says nothing about whether the account exists.
  */
-export async function minutesLocked(attempt: Attempt, now = new Date()): Promise<number> {
+export async function admission(attempt: Attempt, now = new Date()): Promise<Admission> {
 	const rows = await db
-		.select({ lockedUntil: signInThrottle.lockedUntil })
+		.select({ key: signInThrottle.key, lockedUntil: signInThrottle.lockedUntil })
 		.from(signInThrottle)
-		.where(inArray(signInThrottle.key, [accountKey(attempt.email), addressKey(attempt.address)]));
-	const until = Math.max(0, ...rows.map((r) => r.lockedUntil?.getTime() ?? 0));
-	return minutesUntil(until, now);
+		.where(
+			inArray(signInThrottle.key, [
+				pairKey(attempt),
+				addressKey(attempt.address),
+				accountKey(attempt.email)
+			])
+		);
+	const until = (keys: string[]) =>
+		Math.max(
+			0,
+			...rows.filter((r) => keys.includes(r.key)).map((r) => r.lockedUntil?.getTime() ?? 0)
+		);
+	const locked = minutesUntil(until([pairKey(attempt), addressKey(attempt.address)]), now);
+	if (locked) return { kind: 'locked', minutes: locked };
+	const delayedUntil = until([accountKey(attempt.email)]);
+	if (delayedUntil > now.getTime()) {
+		return { kind: 'wait', seconds: Math.ceil((delayedUntil - now.getTime()) / 1000) };
+	}
+	return { kind: 'open' };
+}
+
+/** Whole minutes until the attempt may be tried again for a lock (0 = not locked). */
+export async function minutesLocked(attempt: Attempt, now = new Date()): Promise<number> {
+	const a = await admission(attempt, now);
+	return a.kind === 'locked' ? a.minutes : 0;
 }
 
 /** True for MariaDB's "deadlock, try again" answer. */
@@ -83,9 +130,45 @@ function isDeadlock(e: unknown): boolean {
  * right, so `window_started_at` and `locked_until` see the new `failures`.
  */
 async function countFailure(key: string, limit: ThrottleLimit, now: Date): Promise<Date | null> {
-	const windowOpenSince = new Date(now.getTime() - limit.windowMs);
 	const lockEnd = new Date(now.getTime() + limit.lockMs);
-	const firstLock = limit.failures <= 1 ? lockEnd : null;
+	return upsertFailure(
+		key,
+		limit.windowMs,
+		limit.failures <= 1 ? lockEnd : null,
+		sql`IF(failures >= ${limit.failures}, ${lockEnd}, NULL)`,
+		now
+	);
+}
+
+/**
+ * Counts one failure against the account from any address and sets its delay: none for the
+ * first ACCOUNT_DELAY.freeFailures, then firstDelayMs × 2^(n − free), at most maxDelayMs.
+ */
+async function countAccountFailure(email: string, now: Date): Promise<void> {
+	const d = ACCOUNT_DELAY;
+	const delay = sql`LEAST(${d.firstDelayMs} * POW(2, failures - ${d.freeFailures}), ${d.maxDelayMs})`;
+	await upsertFailure(
+		accountKey(email),
+		d.windowMs,
+		d.freeFailures <= 0 ? new Date(now.getTime() + d.firstDelayMs) : null,
+		sql`IF(failures >= ${d.freeFailures}, ${now} + INTERVAL (${delay} * 1000) MICROSECOND, NULL)`,
+		now
+	);
+}
+
+/**
+ * The one atomic statement behind every counter: insert the key, or add one failure (starting a
+ * new window when the old one has passed) and set locked_until from `lockedUntil`, an SQL
+ * expression that sees the new `failures`. Returns the key's lock end if it lies ahead.
+ */
+async function upsertFailure(
+	key: string,
+	windowMs: number,
+	firstLock: Date | null,
+	lockedUntil: SQL,
+	now: Date
+): Promise<Date | null> {
+	const windowOpenSince = new Date(now.getTime() - windowMs);
 	for (let attempt = 1; ; attempt++) {
 		try {
 			await db.execute(sql`
@@ -94,7 +177,7 @@ async function countFailure(key: string, limit: ThrottleLimit, now: Date): Promi
 				ON DUPLICATE KEY UPDATE
 					failures = IF(window_started_at > ${windowOpenSince}, failures + 1, 1),
 					window_started_at = IF(failures = 1, ${now}, window_started_at),
-					locked_until = IF(failures >= ${limit.failures}, ${lockEnd}, NULL)`);
+					locked_until = ${lockedUntil}`);
 			break;
 		} catch (e) {
 			// Two first failures for a new key can deadlock on the unique check; once more is enough.
@@ -109,24 +192,26 @@ async function countFailure(key: string, limit: ThrottleLimit, now: Date): Promi
 }
 
 /**
- * Records a failed attempt against the account and the address; returns whole minutes of the
- * lock this failure started (0 if none).
+ * Records a failed attempt against the (account, address) pair, the address and the account;
+ * returns whole minutes of the lock this failure started (0 if none). The account's delay is
+ * read by the next attempt's admission.
  */
 export async function recordFailure(attempt: Attempt, now = new Date()): Promise<number> {
-	const locks = await Promise.all([
-		countFailure(accountKey(attempt.email), ACCOUNT_LIMIT, now),
-		countFailure(addressKey(attempt.address), ADDRESS_LIMIT, now)
+	const [pair, address] = await Promise.all([
+		countFailure(pairKey(attempt), PAIR_LIMIT, now),
+		countFailure(addressKey(attempt.address), ADDRESS_LIMIT, now),
+		countAccountFailure(attempt.email, now)
 	]);
-	const until = Math.max(0, ...locks.map((d) => d?.getTime() ?? 0));
-	return minutesUntil(until, now);
+	return minutesUntil(Math.max(pair?.getTime() ?? 0, address?.getTime() ?? 0), now);
 }
 
 /**
- * A successful sign-in clears the account's count. The address count stays: one valid account
- * must not reset the budget of someone guessing at others from the same address.
+ * A successful sign-in clears the pair's count. The address count stays (one valid account must
+ * not reset the budget of someone guessing at others from the same address), and so does the
+ * account's: its owner signing in must not hand a spread-out guesser a fresh set of free tries.
  */
 export async function recordSuccess(attempt: Attempt): Promise<void> {
-	await db.delete(signInThrottle).where(eq(signInThrottle.key, accountKey(attempt.email)));
+	await db.delete(signInThrottle).where(eq(signInThrottle.key, pairKey(attempt)));
 	await pruneThrottle();
 }
 
@@ -154,7 +239,7 @@ export async function countLinkRequest(attempt: Attempt, now = new Date()): Prom
 /** Deletes rows whose window and lock are both long over (housekeeping; safe at any time). */
 export async function pruneThrottle(now = new Date()): Promise<void> {
 	const horizon = new Date(
-		now.getTime() - Math.max(ACCOUNT_LIMIT.windowMs, ADDRESS_LIMIT.windowMs)
+		now.getTime() - Math.max(PAIR_LIMIT.windowMs, ADDRESS_LIMIT.windowMs, ACCOUNT_DELAY.windowMs)
 	);
 	await db
 		.delete(signInThrottle)

@@ -1,14 +1,21 @@
 import bcrypt from 'bcryptjs';
-import { and, asc, eq, inArray, ne } from 'drizzle-orm';
+import { and, asc, eq, gt, inArray, isNull, ne } from 'drizzle-orm';
 import type { z } from 'zod';
 import type { Role } from '../schemas/roles';
 import { ROLES } from '../schemas/roles';
-import { inviteSchema, newUserSchema, rolesSchema, type NewUser } from '../schemas/users';
+import {
+	inviteSchema,
+	newPasswordSchema,
+	newUserSchema,
+	rolesSchema,
+	type NewUser
+} from '../schemas/users';
 import { inviteMail } from './auth-mail';
 import { db, type Db } from './db';
-import { userRoles, users } from './db/schema';
+import { signInSessions, userRoles, users } from './db/schema';
 import { assertRole, type Actor } from './guard';
 import { sendMail } from './mail';
+import { liveSince, revokeUserSessions, touchSession } from './sessions';
 import { createSignInLink, INVITE_LINK_MAX_AGE_S } from './sign-in-link';
 
 /** bcrypt cost: about a quarter of a second per hash on a small server (measured, 2 cores). */
@@ -99,25 +106,41 @@ export async function isActiveEmail(email: string): Promise<boolean> {
 
 /**
  * The signed-in person for this request, read fresh from the database so that deactivation and
- * role changes take effect at once; null when unknown or deactivated. `signedInAt` (ms) is when
- * the session began: a session from before the last deactivation stays dead after reactivation.
+ * role changes take effect at once; null when the session is unknown, revoked or expired, or
+ * the person is unknown or deactivated. One query: the session row, the person and their roles.
+ * A session without an id (a JWT from before sessions were recorded) counts as signed out.
  */
-export async function loadSessionUser(id: string, signedInAt?: number): Promise<Actor | null> {
-	const [row] = await db
+export async function loadSessionUser(
+	id: string,
+	sessionId: string | undefined,
+	now = new Date()
+): Promise<Actor | null> {
+	if (!sessionId) return null;
+	const rows = await db
 		.select({
 			id: users.id,
 			email: users.email,
 			name: users.name,
-			active: users.active,
-			deactivatedAt: users.deactivatedAt
+			role: userRoles.role,
+			lastSeenAt: signInSessions.lastSeenAt
 		})
-		.from(users)
-		.where(eq(users.id, id))
-		.limit(1);
-	if (!row?.active || !row.email) return null;
-	if (row.deactivatedAt && !(signedInAt && signedInAt > row.deactivatedAt.getTime())) return null;
-	const roles = (await rolesOf([row.id])).get(row.id) ?? [];
-	return { id: row.id, email: row.email, name: row.name || row.email, roles };
+		.from(signInSessions)
+		.innerJoin(users, eq(users.id, signInSessions.userId))
+		.leftJoin(userRoles, eq(userRoles.userId, users.id))
+		.where(
+			and(
+				eq(signInSessions.id, sessionId),
+				eq(signInSessions.userId, id),
+				isNull(signInSessions.revokedAt),
+				gt(signInSessions.lastSeenAt, liveSince(now)),
+				eq(users.active, true)
+			)
+		);
+	const row = rows[0];
+	if (!row?.email) return null;
+	await touchSession(sessionId, row.lastSeenAt, now);
+	const roles = sortRoles(rows.flatMap((r) => (r.role ? [r.role] : [])));
+	return { id: row.id, email: row.email, name: row.name || row.email, roles, sessionId };
 }
 
 function toSummary(row: typeof users.$inferSelect, roles: Role[]): UserSummary {
@@ -290,6 +313,39 @@ async function requireUserRow(tx: Tx, userId: string) {
 	return row;
 }
 
+/** The actor's own session, when they change something about themselves. */
+const keepOwn = (actor: Actor, userId: string) =>
+	actor.id === userId ? actor.sessionId : undefined;
+
+/**
+ * Sets a new password for the actor, who proves the current one first (if they have one).
+ * Every other session of theirs ends: whoever may have learnt the old password is signed out.
+ */
+export async function changePassword(
+	actor: Actor,
+	input: { current: string; next: string }
+): Promise<void> {
+	const parsed = newPasswordSchema.safeParse(input.next);
+	if (!parsed.success) {
+		throw new UserRuleError(parsed.error.issues[0]?.message ?? 'Choose another password.', 'next');
+	}
+	const [row] = await db
+		.select({ passwordHash: users.passwordHash })
+		.from(users)
+		.where(eq(users.id, actor.id))
+		.limit(1);
+	if (!row) throw new UserRuleError('There is nobody with that id.');
+	if (row.passwordHash && !(await verifyPassword(input.current, row.passwordHash))) {
+		throw new UserRuleError('That is not your current password.', 'current');
+	}
+	const hash = await hashPassword(parsed.data);
+	await db.transaction(async (tx) => {
+		await requireUserRow(tx, actor.id);
+		await tx.update(users).set({ passwordHash: hash }).where(eq(users.id, actor.id));
+		await revokeUserSessions(actor.id, tx, { keep: actor.sessionId });
+	});
+}
+
 /** Replaces a person's roles with exactly `roles` (admin only; keeps at least one admin). */
 export async function setRoles(userId: string, roles: Role[], actor: Actor): Promise<Role[]> {
 	assertRole(actor, ['admin'], 'change roles');
@@ -312,6 +368,12 @@ export async function setRoles(userId: string, roles: Role[], actor: Actor): Pro
 			await tx
 				.insert(userRoles)
 				.values(added.map((role) => ({ userId, role, grantedAt: now, grantedBy: actor.id })));
+		}
+		// A role change signs the person out everywhere, so no device carries on with pages or
+		// an offline register prepared for the old roles. Admins changing their own roles keep
+		// the session they are using.
+		if (removed.length || added.length) {
+			await revokeUserSessions(userId, tx, { keep: keepOwn(actor, userId) });
 		}
 	});
 	return sortRoles(wanted);
@@ -360,12 +422,13 @@ export async function deactivate(userId: string, actor: Actor): Promise<void> {
 			.update(users)
 			.set({ active: false, deactivatedAt: new Date() })
 			.where(eq(users.id, userId));
+		await revokeUserSessions(userId, tx);
 	});
 }
 
 /**
- * Lets a deactivated person sign in again, with the roles they had. They sign in afresh:
- * deactivatedAt is kept as "last deactivated", which keeps older sessions dead.
+ * Lets a deactivated person sign in again, with the roles they had. They sign in afresh: the
+ * sessions deactivation revoked stay revoked. deactivatedAt is kept as "last deactivated".
  */
 export async function reactivate(userId: string, actor: Actor): Promise<void> {
 	assertRole(actor, ['admin'], 'reactivate people');

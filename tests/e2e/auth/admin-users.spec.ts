@@ -1,5 +1,5 @@
 import { expect as baseExpect, test, type Page } from '@playwright/test';
-import { demoAccount, signInAs, submitPassword } from '../helpers/auth';
+import { demoAccount, signInAs, submitPassword, untilHydrated } from '../helpers/auth';
 import { waitForMail } from '../helpers/mail';
 
 // Several browser contexts and server round trips per step: give a busy machine time.
@@ -76,7 +76,10 @@ test('the invite form shows field messages and adds nobody', async ({ page }) =>
 	await expect(card(page, 'Someone Again')).toHaveCount(0);
 });
 
-test('roles change at once for the person concerned', async ({ page, browser }) => {
+test('a role change signs the person out everywhere; signing in again brings the new roles', async ({
+	page,
+	browser
+}) => {
 	await signInAs(page, 'admin', '/admin/users');
 	const email = unique('roles');
 	const since = Date.now();
@@ -97,6 +100,20 @@ test('roles change at once for the person concerned', async ({ page, browser }) 
 		await expect(page.getByRole('main').getByRole('status')).toHaveText(
 			'✓ Roles of Jonas Aberg saved.'
 		);
+		// The session from before the change has ended ...
+		await them.goto('/admin/users');
+		await expect(them).toHaveURL(/\/signin\?next=%2Fadmin%2Fusers$/);
+		// ... and a fresh sign-in carries the new role.
+		const again = Date.now();
+		await untilHydrated(them);
+		await them.getByLabel('E-mail for a sign-in link').fill(email);
+		await them.getByRole('button', { name: 'E-mail me a sign-in link' }).click();
+		await expect(them).toHaveURL(/\/signin\/check-mail$/);
+		const fresh = (await waitForMail(email, again)).links.find((l) =>
+			l.includes('/auth/callback/')
+		)!;
+		await them.goto(fresh);
+		await expect(them.getByRole('link', { name: 'Sign out' })).toBeVisible();
 		expect((await them.goto('/admin/users'))?.status()).toBe(200);
 		await expect(them.getByRole('heading', { name: 'People', level: 1 })).toBeVisible();
 	} finally {
@@ -108,7 +125,8 @@ test('roles change at once for the person concerned', async ({ page, browser }) 
 			'✓ Roles of Jonas Aberg saved.'
 		);
 	}
-	expect((await them.goto('/admin/users'))?.status()).toBe(403);
+	await them.goto('/admin/users');
+	await expect(them).toHaveURL(/\/signin\?next=/);
 	await theirs.close();
 });
 

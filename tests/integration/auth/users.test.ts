@@ -4,6 +4,12 @@ import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
 import { ForbiddenError } from '$lib/server/guard';
 import { closeMail, MailNotSentError } from '$lib/server/mail';
+import {
+	LAST_SEEN_STEP_MS,
+	revokeSession,
+	SESSION_MAX_AGE_S,
+	startSession
+} from '$lib/server/sessions';
 import { authSecret } from '$lib/server/sign-in-link';
 import * as people from '$lib/server/users';
 import { closeDb, db, makeFixture, makeUser, resetDb, schema } from '../helpers/db';
@@ -92,7 +98,32 @@ describe('roles', () => {
 			'technician',
 			'planner'
 		]);
-		expect((await people.loadSessionUser(p.id))?.roles).toEqual(['technician', 'planner']);
+		// The old session ended with the change; a new sign-in sees the new roles.
+		const sid = await startSession(p.id);
+		expect((await people.loadSessionUser(p.id, sid))?.roles).toEqual(['technician', 'planner']);
+	});
+
+	it('a role change ends every session of the person, and only when something changed', async () => {
+		const admin = await makeUser({ roles: ['admin'] });
+		const p = await makeUser({ roles: ['operator'] });
+		const [phone, laptop] = [await startSession(p.id), await startSession(p.id)];
+		const adminSession = await startSession(admin.id);
+		await people.setRoles(p.id, ['operator'], admin); // no change: nobody is signed out
+		expect(await people.loadSessionUser(p.id, phone)).not.toBeNull();
+		await people.setRoles(p.id, ['operator', 'technician'], admin);
+		expect(await people.loadSessionUser(p.id, phone)).toBeNull();
+		expect(await people.loadSessionUser(p.id, laptop)).toBeNull();
+		// The admin who made the change is not signed out.
+		expect(await people.loadSessionUser(admin.id, adminSession)).not.toBeNull();
+	});
+
+	it('admins changing their own roles keep the session they use, and lose the others', async () => {
+		const a = await makeUser({ roles: ['admin'] });
+		const [mine, other] = [await startSession(a.id), await startSession(a.id)];
+		const me = { ...(await people.loadSessionUser(a.id, mine))! };
+		await people.grantRole(a.id, 'planner', me);
+		expect((await people.loadSessionUser(a.id, mine))?.roles).toEqual(['planner', 'admin']);
+		expect(await people.loadSessionUser(a.id, other)).toBeNull();
 	});
 
 	it('grantRole and revokeRole change one role; the last role cannot be revoked', async () => {
@@ -157,14 +188,13 @@ describe('deactivate and reactivate', () => {
 		const admin = await makeUser({ roles: ['admin'] });
 		const p = await makeUser({ roles: ['supervisor'], name: 'Ines Brandt' });
 		const fixture = await makeFixture({ createdBy: p.id });
-		const before = Date.now();
+		const before = await startSession(p.id);
 		expect(await people.loadSessionUser(p.id, before)).not.toBeNull();
-		// Never deactivated: a session without a start time (an older token) is fine.
-		expect(await people.loadSessionUser(p.id)).not.toBeNull();
+		// A token from before sessions were recorded carries no id: signed out.
+		expect(await people.loadSessionUser(p.id, undefined)).toBeNull();
 
-		await new Promise((r) => setTimeout(r, 5));
 		await people.deactivate(p.id, admin);
-		expect(await people.loadSessionUser(p.id)).toBeNull();
+		expect(await people.loadSessionUser(p.id, before)).toBeNull();
 		const summary = await people.getUser(p.id);
 		expect(summary).toMatchObject({ active: false, name: 'Ines Brandt', roles: ['supervisor'] });
 		expect(summary?.deactivatedAt).toBeInstanceOf(Date);
@@ -175,8 +205,8 @@ describe('deactivate and reactivate', () => {
 		expect((await people.getUser(p.id))?.active).toBe(true);
 		// A session from before the deactivation stays dead; a new sign-in works.
 		expect(await people.loadSessionUser(p.id, before)).toBeNull();
-		expect(await people.loadSessionUser(p.id)).toBeNull();
-		expect((await people.loadSessionUser(p.id, Date.now() + 1))?.roles).toEqual(['supervisor']);
+		const fresh = await startSession(p.id);
+		expect((await people.loadSessionUser(p.id, fresh))?.roles).toEqual(['supervisor']);
 	});
 
 	it('refuses deactivating yourself, and non-admins', async () => {
@@ -192,6 +222,70 @@ describe('deactivate and reactivate', () => {
 	it('refuses a person who does not exist', async () => {
 		const admin = await makeUser({ roles: ['admin'] });
 		await expect(people.deactivate('no-such-id', admin)).rejects.toThrow(/nobody with that id/);
+	});
+});
+
+describe('sessions', () => {
+	it('signing out ends that session only; the person’s other devices stay signed in', async () => {
+		const p = await makeUser({ roles: ['technician'] });
+		const [phone, tablet] = [await startSession(p.id), await startSession(p.id)];
+		await revokeSession(phone);
+		expect(await people.loadSessionUser(p.id, phone)).toBeNull();
+		expect((await people.loadSessionUser(p.id, tablet))?.sessionId).toBe(tablet);
+	});
+
+	it('refuses a session id that belongs to someone else, or that nobody made', async () => {
+		const p = await makeUser({ roles: ['technician'] });
+		const q = await makeUser({ roles: ['technician'] });
+		const theirs = await startSession(q.id);
+		expect(await people.loadSessionUser(p.id, theirs)).toBeNull();
+		expect(await people.loadSessionUser(p.id, crypto.randomUUID())).toBeNull();
+	});
+
+	it('expires a session unused for longer than the cookie lives', async () => {
+		const p = await makeUser({ roles: ['technician'] });
+		const t0 = new Date();
+		const sid = await startSession(p.id, t0);
+		const later = new Date(t0.getTime() + SESSION_MAX_AGE_S * 1000 + 1000);
+		expect(await people.loadSessionUser(p.id, sid, later)).toBeNull();
+	});
+
+	it('notes when a session was last used, at most every few minutes', async () => {
+		const p = await makeUser({ roles: ['technician'] });
+		const t0 = new Date(Date.now() - 60 * 60_000);
+		const sid = await startSession(p.id, t0);
+		const seen = async () =>
+			(
+				await db.select().from(schema.signInSessions).where(eq(schema.signInSessions.id, sid))
+			)[0].lastSeenAt.getTime();
+		await people.loadSessionUser(p.id, sid, new Date(t0.getTime() + 60_000));
+		expect(await seen()).toBe(t0.getTime());
+		const now = new Date(t0.getTime() + LAST_SEEN_STEP_MS + 1000);
+		await people.loadSessionUser(p.id, sid, now);
+		expect(await seen()).toBe(now.getTime());
+	});
+
+	it('a password change ends every other session and needs the current password', async () => {
+		const p = await makeUser({ roles: ['technician'] });
+		await db
+			.update(schema.users)
+			.set({ passwordHash: await people.hashPassword('the-old-password') })
+			.where(eq(schema.users.id, p.id));
+		const [here, elsewhere] = [await startSession(p.id), await startSession(p.id)];
+		const me = (await people.loadSessionUser(p.id, here))!;
+		await expect(
+			people.changePassword(me, { current: 'not-it-at-all', next: 'a-brand-new-pass' })
+		).rejects.toThrow(/not your current password/);
+		await expect(
+			people.changePassword(me, { current: 'the-old-password', next: 'short' })
+		).rejects.toThrow(/at least 10/);
+		expect(await people.loadSessionUser(p.id, elsewhere)).not.toBeNull();
+
+		await people.changePassword(me, { current: 'the-old-password', next: 'a-brand-new-pass' });
+		expect(await people.loadSessionUser(p.id, elsewhere)).toBeNull();
+		expect(await people.loadSessionUser(p.id, here)).not.toBeNull();
+		const [row] = await db.select().from(schema.users).where(eq(schema.users.id, p.id));
+		expect(await people.verifyPassword('a-brand-new-pass', row.passwordHash)).toBe(true);
 	});
 });
 

@@ -8,7 +8,11 @@ import {
 
 export { QR_ERROR_CORRECTION, QR_QUIET_ZONE, darkRuns, labelUrl } from '$lib/domain/qr-modules';
 
-/** The app's public origin for printed labels: ORIGIN from the environment, else `fallback`. */
+/**
+ * The app's public origin for printed labels: ORIGIN from the environment, else `fallback`
+ * (the request's origin under `vite dev`). A label outlives any request, so it must never carry
+ * whatever host a request claimed.
+ */
 export function labelOrigin(fallback?: string): string {
 	const origin = process.env.ORIGIN || fallback;
 	if (!origin) throw new Error('ORIGIN is not set, so labels cannot carry an absolute URL');

@@ -38,7 +38,9 @@ export const actions: Actions = {
 		} catch (e) {
 			if (isRedirect(e)) redirect(303, next);
 			if (e instanceof CredentialsSignin) {
-				return fail(400, { form: 'password' as const, email, message: refusalMessage(e.code) });
+				// A lock or a wait is "too many requests"; a wrong password is a plain refusal.
+				const status = /^(locked|wait)-/.test(e.code ?? '') ? 429 : 400;
+				return fail(status, { form: 'password' as const, email, message: refusalMessage(e.code) });
 			}
 			throw e;
 		}

@@ -47,6 +47,11 @@ describe('refusalMessage', () => {
 		expect(refusalMessage('locked-1')).toMatch(/Wait 1 minute and/);
 	});
 
+	it('gives the seconds to wait when the account is delayed', () => {
+		expect(refusalMessage('wait-30')).toMatch(/Wait 30 seconds and try again/);
+		expect(refusalMessage('wait-1')).toMatch(/Wait 1 second and/);
+	});
+
 	it('names deactivation', () => {
 		expect(refusalMessage('inactive')).toMatch(/deactivated/);
 	});

@@ -7,6 +7,11 @@ export function refusalMessage(code: string | null | undefined): string {
 		const m = Number(locked[1]);
 		return `Too many failed attempts. Wait ${m} minute${m === 1 ? '' : 's'} and try again, or ask for a sign-in link by e-mail below.`;
 	}
+	const wait = /^wait-(\d+)$/.exec(code ?? '');
+	if (wait) {
+		const s = Number(wait[1]);
+		return `Many failed attempts on this account just now. Wait ${s} second${s === 1 ? '' : 's'} and try again, or ask for a sign-in link by e-mail below.`;
+	}
 	if (code === 'inactive') {
 		return 'This account has been deactivated. If you need access again, ask an admin.';
 	}

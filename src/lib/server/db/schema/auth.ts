@@ -107,3 +107,25 @@ export const signInThrottle = mysqlTable(
 	},
 	(t) => [index('sign_in_throttle_locked_idx').on(t.lockedUntil)]
 );
+
+/**
+ * One row per sign-in (a phone, a laptop, a browser): its id travels in the session JWT and is
+ * checked on every request in the same query that loads the person. A table rather than one
+ * "session version" per person, so signing out on one phone ends that phone's session only,
+ * while a password change, a role change or a deactivation ends all of the person's sessions.
+ * Rows are kept after revocation until they are long expired (see $lib/server/sessions).
+ */
+export const signInSessions = mysqlTable(
+	'sign_in_sessions',
+	{
+		id: varchar('id', { length: 36 }).primaryKey(),
+		userId: varchar('user_id', { length: 255 })
+			.notNull()
+			.references(() => users.id, { onDelete: 'cascade' }),
+		createdAt: datetime('created_at', { mode: 'date', fsp: 3 }).notNull(),
+		/** Updated at most every few minutes, not on every request (see touchSession). */
+		lastSeenAt: datetime('last_seen_at', { mode: 'date', fsp: 3 }).notNull(),
+		revokedAt: datetime('revoked_at', { mode: 'date', fsp: 3 })
+	},
+	(t) => [index('sign_in_sessions_user_idx').on(t.userId)]
+);

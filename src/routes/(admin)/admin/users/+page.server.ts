@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { inviteSchema, setRolesSchema, userIdSchema } from '$lib/schemas/users';
 import { ForbiddenError, requireUser } from '$lib/server/guard';
 import { MailNotSentError } from '$lib/server/mail';
+import { publicOrigin } from '$lib/server/origin';
 import * as people from '$lib/server/users';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -88,7 +89,7 @@ export const actions: Actions = {
 		}
 		let id: string;
 		try {
-			id = (await people.inviteUser(parsed.data, actor, { origin: url.origin })).id;
+			id = (await people.inviteUser(parsed.data, actor, { origin: publicOrigin(url.origin) })).id;
 		} catch (e) {
 			return refused('invite', e, { values });
 		}
@@ -150,7 +151,9 @@ export const actions: Actions = {
 		if (!parsed.success)
 			return failWith(400, { action: 'resend', errors: { form: ['Choose a person.'] } });
 		try {
-			await people.resendInvitation(parsed.data.userId, actor, { origin: url.origin });
+			await people.resendInvitation(parsed.data.userId, actor, {
+				origin: publicOrigin(url.origin)
+			});
 		} catch (e) {
 			return refused('resend', e, { userId: parsed.data.userId });
 		}
