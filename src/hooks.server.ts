@@ -5,6 +5,7 @@ import type { Role } from '$lib/schemas/roles';
 import { authHandle, type SessionWithStart } from '$lib/server/auth';
 import { startDueScan } from '$lib/server/due-scan';
 import { hasRole } from '$lib/server/guard';
+import { securityHeaders } from '$lib/server/security-headers';
 import { loadSessionUser } from '$lib/server/users';
 
 /** API paths anyone may call without signing in. */
@@ -92,7 +93,7 @@ const guard: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
-export const handle: Handle = sequence(requestLog, authHandle, locals, guard);
+export const handle: Handle = sequence(securityHeaders, requestLog, authHandle, locals, guard);
 
 /** Starts the calendar scan (cleaning and inspection due by days) once per server process. */
 export const init: ServerInit = () => {
