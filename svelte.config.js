@@ -4,6 +4,13 @@ import { vitePreprocess } from '@sveltejs/vite-plugin-svelte';
 /** sha256 of the style="" on SvelteKit's route announcer (.svelte-kit/generated/root.svelte). */
 export const ANNOUNCER_STYLE_HASH = 'sha256-S8qMpvofolR8Mpjy4kQvEm7m1q8clzU4dfDH0AmvZjo=';
 
+/**
+ * sha256 of `this.__e=event`: the onload/onerror attribute Svelte renders on the server for an
+ * element with a load or error handler (our photo thumbnails), so an event that fires before
+ * hydration is replayed after it.
+ */
+export const SVELTE_EVENT_REPLAY_HASH = 'sha256-7dQwUgLau1NFCCGjfn9FsYptB6ZtWxJin6VohGIu20I=';
+
 /** @type {import('@sveltejs/kit').Config} */
 const config = {
 	preprocess: vitePreprocess(),
@@ -20,6 +27,8 @@ const config = {
 			directives: {
 				'default-src': ['self'],
 				'script-src': ['self'],
+				// Inline event handlers: only Svelte's own load/error replay, by hash.
+				'script-src-attr': ['unsafe-hashes', SVELTE_EVENT_REPLAY_HASH],
 				// No inline styles at all: Svelte 5 animates with the Web Animations API, chart.js and
 				// html5-qrcode style their elements through the CSSOM, and our markup has no style="".
 				'style-src': ['self'],

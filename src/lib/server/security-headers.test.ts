@@ -4,7 +4,7 @@ import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import { json } from '@sveltejs/kit';
 import { describe, expect, it } from 'vitest';
-import config, { ANNOUNCER_STYLE_HASH } from '../../../svelte.config.js';
+import config, { ANNOUNCER_STYLE_HASH, SVELTE_EVENT_REPLAY_HASH } from '../../../svelte.config.js';
 import {
 	DEFAULT_CACHE_CONTROL,
 	JSON_CSP,
@@ -69,15 +69,30 @@ describe('the page policy in svelte.config.js', () => {
 		expect(directives['style-src']).toEqual(['self']);
 	});
 
+	const require = createRequire(import.meta.url);
+	/** A source file of an installed package. */
+	const sourceOf = (pkg: string, file: string) =>
+		readFileSync(join(dirname(require.resolve(`${pkg}/package.json`)), file), 'utf8');
+	const sha256 = (text: string) => `sha256-${createHash('sha256').update(text).digest('base64')}`;
+
 	it('lets exactly the style of SvelteKit’s route announcer through, by hash', () => {
 		// The installed SvelteKit's generated root component, where the announcer is written.
-		const require = createRequire(import.meta.url);
-		const kit = dirname(require.resolve('@sveltejs/kit/package.json'));
-		const source = readFileSync(join(kit, 'src/core/sync/write_root.js'), 'utf8');
+		const source = sourceOf('@sveltejs/kit', 'src/core/sync/write_root.js');
 		const style = /id="svelte-announcer"[^>]*\sstyle="([^"]+)"/.exec(source)?.[1];
 		expect(style, 'SvelteKit still writes a style="" on its announcer').toBeTruthy();
-		const hash = `sha256-${createHash('sha256').update(style!).digest('base64')}`;
-		expect(hash).toBe(ANNOUNCER_STYLE_HASH);
+		expect(sha256(style!)).toBe(ANNOUNCER_STYLE_HASH);
 		expect(directives['style-src-attr']).toEqual(['unsafe-hashes', ANNOUNCER_STYLE_HASH]);
+	});
+
+	it('lets exactly Svelte’s load/error replay handler run, by hash, and no other inline handler', () => {
+		// What the installed Svelte compiler writes into server-rendered elements with onload/onerror.
+		const source = sourceOf(
+			'svelte',
+			'src/compiler/phases/3-transform/server/visitors/shared/element.js'
+		);
+		const handler = /\$\{event\}="([^"]+)"/.exec(source)?.[1];
+		expect(handler).toBe('this.__e=event');
+		expect(sha256(handler!)).toBe(SVELTE_EVENT_REPLAY_HASH);
+		expect(directives['script-src-attr']).toEqual(['unsafe-hashes', SVELTE_EVENT_REPLAY_HASH]);
 	});
 });

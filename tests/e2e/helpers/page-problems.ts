@@ -30,7 +30,11 @@ export async function watchProblems(context: BrowserContext): Promise<PageProble
 	}, BINDING);
 	const watchPage = (page: Page) => {
 		page.on('console', (m) => {
-			if (m.type() === 'error') problems.push({ kind: 'console', text: m.text(), url: page.url() });
+			if (m.type() !== 'error') return;
+			// A failed load names the resource only in its location.
+			const at = m.location().url;
+			const text = at && at !== page.url() ? `${m.text()} (${at})` : m.text();
+			problems.push({ kind: 'console', text, url: page.url() });
 		});
 		page.on('pageerror', (e) =>
 			problems.push({ kind: 'pageerror', text: e.message, url: page.url() })

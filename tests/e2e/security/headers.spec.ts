@@ -45,6 +45,11 @@ async function expectPagePolicy(res: APIResponse) {
 	expect(scripts).toContain("'self'");
 	expect(scripts).not.toContain("'unsafe-inline'");
 	expect(scripts).not.toContain("'unsafe-eval'");
+	// Inline handlers: only Svelte's hashed load/error replay.
+	expect(d.get('script-src-attr')).toEqual([
+		"'unsafe-hashes'",
+		"'sha256-7dQwUgLau1NFCCGjfn9FsYptB6ZtWxJin6VohGIu20I='"
+	]);
 	expect(d.get('default-src')).toEqual(["'self'"]);
 	expect(d.get('object-src')).toEqual(["'none'"]);
 	expect(d.get('base-uri')).toEqual(["'self'"]);
