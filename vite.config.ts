@@ -11,6 +11,11 @@ export default defineConfig({
 			registerType: 'autoUpdate',
 			// The root layout registers the worker (virtual:pwa-register) and links the manifest.
 			injectRegister: false,
+			// SvelteKit builds with relative paths (base './'), which would register `./sw.js` with
+			// scope './' relative to the page: /fixtures/sw.js on a nested page, a 404, and a phone
+			// whose first page is nested never gets the offline app. One worker for the whole site.
+			base: '/',
+			scope: '/',
 			manifest: {
 				id: '/',
 				name: 'Nestmark',

@@ -16,6 +16,7 @@ import { formBodyCheck } from '$lib/server/form-body';
 import { hasRole } from '$lib/server/guard';
 import { pinOrigin } from '$lib/server/origin-handle';
 import { overloadError, overloadHandle } from '$lib/server/overload';
+import { securityHeaders } from '$lib/server/security-headers';
 import { loadSessionUser } from '$lib/server/users';
 
 /** API paths anyone may call without signing in. */
@@ -107,9 +108,11 @@ const guard: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
+// securityHeaders is first so it sees every answer, the rewritten ones included.
 // apiJsonErrors stays outside overloadHandle: an overload thrown by the session lookup must reach
 // overloadHandle (503 + Retry-After) before anything turns it into a JSON 500.
 export const handle: Handle = sequence(
+	securityHeaders,
 	requestLog,
 	apiJsonErrors,
 	overloadHandle,
