@@ -14,12 +14,10 @@
  * waits, as a person at a machine does, so its outbox grows during an outage. Some requests are
  * aborted by the client at a random moment, as a phone losing its network mid-request would.
  */
-import { batches, retryDelayMs } from '../../src/lib/domain/sync-schedule.ts';
+import { batches, retryDelayMs, SYNC_BATCH_SIZE } from '../../src/lib/domain/sync-schedule.ts';
 import { seededRandom } from '../../src/lib/domain/fixture-code.ts';
 import type { OutEvent, OutPhoto, Work } from './workload.ts';
 
-/** Events per request, as the phone sends them (SYNC_BATCH_SIZE in src/lib/client/sync.svelte.ts). */
-export const SYNC_BATCH_SIZE = 100;
 /** Share of requests the client aborts at a random moment. */
 const ABORT_RATE = 0.03;
 /** The aborts fall in the first this-many ms of a request. */

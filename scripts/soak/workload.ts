@@ -115,10 +115,13 @@ export function makeWork(device: number, codes: string[], count: number): Work {
 			kind = 'break-in';
 			const cycles = 10 + Math.floor(random() * 40);
 			payload = { cycles, readings: Array.from({ length: 5 }, () => ({ dx: um(), dy: um() })) };
-		} else {
+		} else if (!held.has(fixture)) {
 			kind = 'hold';
 			payload = { reason: 'Readings out of band; checking the seats.' };
 			held.add(fixture);
+		} else {
+			kind = 'reseat';
+			payload = {};
 		}
 		const event = {
 			id,
