@@ -6,7 +6,10 @@
 import { getContext, setContext } from 'svelte';
 import {
 	batches,
+	halves,
 	nextSyncDelayMs,
+	parseRetryAfter,
+	refusalAction,
 	SYNC_BATCH_SIZE,
 	SYNC_IDLE_POLL_MS
 } from '$lib/domain/sync-schedule';
@@ -22,6 +25,14 @@ export const UNDO_WINDOW_MS = 5_000;
 const isoNow = () => new Date().toISOString();
 
 type BatchOutcome = 'ok' | 'network' | 'signed-out' | 'server';
+
+/** What one pass learnt from the answers: whether the server took anything, and the entries it failed on alone. */
+interface PassReport {
+	/** The server answered some request of this pass properly (200, or a 400 it explained). */
+	answered: boolean;
+	/** Single entries that got a 5xx: set aside if the server works for the others. */
+	suspects: { id: string; error: string }[];
+}
 
 /** The signed-in person as far as the device knows (from the page), or null. */
 export type SyncUser = { name: string } | null;
@@ -50,6 +61,8 @@ export class SyncEngine {
 	#fetch: typeof fetch;
 	#holdMs: number;
 	#failures = 0;
+	/** How long the server last asked to be left alone (Retry-After), until a pass succeeds. */
+	#retryAfterMs: number | null = null;
 	/** Photos that could upload now (their event delivered), for the timer. */
 	#photosReady = 0;
 	#timer: ReturnType<typeof setTimeout> | undefined;
@@ -122,6 +135,7 @@ export class SyncEngine {
 	/** "Sync now": sends everything waiting at once, undo window or not, and forgets the back-off. */
 	syncNow(): Promise<void> {
 		this.#failures = 0;
+		this.#retryAfterMs = null;
 		this.signedOut = false;
 		return this.run(true);
 	}
@@ -163,12 +177,14 @@ export class SyncEngine {
 			const all = await outbox.sendableEntries();
 			const now = Date.now();
 			const due = force ? all : all.filter((e) => now - Date.parse(e.createdAt) >= this.#holdMs);
+			const report: PassReport = { answered: false, suspects: [] };
 			for (const batch of batches(due, SYNC_BATCH_SIZE)) {
-				outcome = await this.#send(batch);
+				outcome = await this.#send(batch, report);
 				if (outcome !== 'ok') break;
 				delivered += batch.length;
 				answered = true;
 			}
+			outcome = await this.#settleSuspects(report, outcome);
 			if (outcome === 'ok') {
 				// Photos go after their event, so the server can check they belong to it.
 				const up = await photos.uploadWaiting(this.#fetch);
@@ -188,6 +204,7 @@ export class SyncEngine {
 			}
 			if (outcome === 'ok') {
 				this.#failures = 0;
+				this.#retryAfterMs = null;
 				this.problem = null;
 				// "Synced" means the server answered and nothing is left to send.
 				if (answered && due.length === all.length) await this.#markSynced();
@@ -203,8 +220,12 @@ export class SyncEngine {
 		if (outcome !== 'signed-out') this.#scheduleNext();
 	}
 
-	/** Sends one batch and files the answers; see the sync contract in issue 4 §4. */
-	async #send(batch: outbox.OutboxEntry[]): Promise<BatchOutcome> {
+	/**
+	 * Sends one batch and files the answers; see the sync contract in issue 4 §4. A batch the
+	 * server refuses or fails on as a whole is split in halves until the entry at fault is found
+	 * (refusalAction), so one bad entry never holds back the rest of the outbox.
+	 */
+	async #send(batch: outbox.OutboxEntry[], report: PassReport): Promise<BatchOutcome> {
 		const marked = await outbox.markSending(batch.map((e) => e.id));
 		if (!marked.length) return 'ok';
 		const ids = marked.map((e) => e.id);
@@ -240,26 +261,53 @@ export class SyncEngine {
 		} | null;
 		if (res.ok && Array.isArray(body?.results)) {
 			await outbox.applyResults(ids, body.results);
+			report.answered = true;
 			return 'ok';
 		}
 		await outbox.markWaiting(ids);
-		if (res.status === 400 || res.status === 413) {
-			// The request as a whole was refused. Send the entries one by one, so that only the
-			// one the server cannot take is set aside and the rest still go through.
-			if (marked.length === 1) {
-				await outbox.rejectEntries(
-					ids,
-					body?.error ?? `The server refused this entry (${res.status}).`
-				);
-				return 'ok';
-			}
-			for (const entry of marked) {
-				const single = await this.#send([entry]);
-				if (single !== 'ok') return single;
+		const action = refusalAction(res.status, marked.length);
+		if (action === 'split') {
+			for (const half of halves(marked)) {
+				const outcome = await this.#send(half, report);
+				if (outcome !== 'ok') return outcome;
 			}
 			return 'ok';
 		}
+		if (action === 'reject') {
+			report.answered = true;
+			await outbox.rejectEntries(
+				ids,
+				body?.error ?? `The server refused this entry (${res.status}).`
+			);
+			return 'ok';
+		}
+		if (action === 'suspect') {
+			report.suspects.push({
+				id: ids[0],
+				error: `The server failed on this entry (${res.status}${body?.error ? `: ${body.error}` : ''}) while it took the others; check it, then send it again.`
+			});
+			return 'ok';
+		}
+		if (res.status === 503 || res.status === 429) {
+			this.#retryAfterMs = parseRetryAfter(res.headers.get('retry-after'), Date.now());
+		}
 		this.problem = body?.error ?? `The server answered ${res.status}; trying again later.`;
+		return 'server';
+	}
+
+	/**
+	 * Entries the server failed on one by one are set aside when it took other entries in the
+	 * same pass (then the entry is at fault); when it took nothing, the server is at fault and
+	 * everything waits for the next try.
+	 */
+	async #settleSuspects(report: PassReport, outcome: BatchOutcome): Promise<BatchOutcome> {
+		if (!report.suspects.length) return outcome;
+		if (report.answered) {
+			for (const { id, error } of report.suspects) await outbox.rejectEntries([id], error);
+			return outcome;
+		}
+		if (outcome !== 'ok') return outcome;
+		this.problem = 'The server is failing; trying again later.';
 		return 'server';
 	}
 
@@ -284,7 +332,9 @@ export class SyncEngine {
 
 	#scheduleNext(): void {
 		const pending = this.pending + this.#photosReady;
-		this.#schedule(nextSyncDelayMs({ pending, failures: this.#failures }));
+		this.#schedule(
+			nextSyncDelayMs({ pending, failures: this.#failures, retryAfterMs: this.#retryAfterMs })
+		);
 	}
 
 	#schedule(ms: number): void {

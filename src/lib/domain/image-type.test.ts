@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { sniffImage } from './image-type';
+import { MAX_IMAGE_SIDE_PX, imageSizeProblem, sniffImage } from './image-type';
 
 const b64 = (s: string) => new Uint8Array(Buffer.from(s, 'base64'));
 const bytes = (...parts: (number[] | string)[]) =>
@@ -65,5 +65,36 @@ describe('sniffImage', () => {
 		expect(sniffImage(new TextEncoder().encode('photo.png: ball 2 looked fine'))).toBeNull();
 		expect(sniffImage(bytes('GIF89a', [1, 0, 1, 0]))).toBeNull();
 		expect(sniffImage(new Uint8Array())).toBeNull();
+	});
+});
+
+describe('imageSizeProblem', () => {
+	const png = (width: number, height: number) => ({ type: 'image/png' as const, width, height });
+
+	it('accepts phone-sized photos, the largest JPEG side, and sizes the header does not give', () => {
+		expect(imageSizeProblem(png(4032, 3024))).toBeNull();
+		// 65535 is the largest value of JPEG's 16-bit frame fields (ITU-T T.81 §B.2.2).
+		expect(MAX_IMAGE_SIDE_PX).toBe(65_535);
+		expect(imageSizeProblem(png(65_535, 1))).toBeNull();
+		expect(imageSizeProblem({ type: 'image/jpeg', width: null, height: null })).toBeNull();
+		// A JPEG may give its height later, in a DNL marker (ITU-T T.81 §B.2.5): 0 here is allowed.
+		expect(imageSizeProblem({ type: 'image/jpeg', width: 640, height: 0 })).toBeNull();
+	});
+
+	it('refuses a PNG header claiming 2^31 px or more, or zero (PNG specification §11.2.2)', () => {
+		const huge = bytes(
+			[0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 13],
+			'IHDR',
+			[0x80, 0, 0, 0, 0xff, 0xff, 0xff, 0xff]
+		);
+		const info = sniffImage(huge)!;
+		expect(info).toEqual({ type: 'image/png', width: 2 ** 31, height: 2 ** 32 - 1 });
+		expect(imageSizeProblem(info)).toBe(
+			'The image header claims a width of 2147483648 pixels; at most 65535 is accepted.'
+		);
+		expect(imageSizeProblem(png(640, 65_536))).toMatch(/height of 65536 pixels/);
+		expect(imageSizeProblem(png(0, 480))).toBe(
+			'The image header gives a width of 0 pixels; the file is damaged.'
+		);
 	});
 });

@@ -89,3 +89,28 @@ function webp(b: Uint8Array): ImageInfo {
 	}
 	return none;
 }
+
+/**
+ * Largest width or height accepted, px. JPEG's frame header cannot say more (16-bit fields,
+ * ITU-T T.81 §B.2.2); a phone photo is far below it (common practice: 4000–8000 px). PNG allows
+ * up to 2^31 − 1 (PNG spec §11.2.2), so a PNG header can claim sizes no photo has.
+ */
+export const MAX_IMAGE_SIDE_PX = 65_535;
+
+/** Why the size the header claims cannot be a photo, or null when it can (or is not given). */
+export function imageSizeProblem(info: ImageInfo): string | null {
+	for (const [side, px] of [
+		['width', info.width],
+		['height', info.height]
+	] as const) {
+		if (px === null) continue;
+		// PNG forbids zero (PNG spec §11.2.2); JPEG may leave the height to a later marker (0).
+		if (px === 0 && !(info.type === 'image/jpeg' && side === 'height')) {
+			return `The image header gives a ${side} of 0 pixels; the file is damaged.`;
+		}
+		if (px > MAX_IMAGE_SIDE_PX) {
+			return `The image header claims a ${side} of ${px} pixels; at most ${MAX_IMAGE_SIDE_PX} is accepted.`;
+		}
+	}
+	return null;
+}

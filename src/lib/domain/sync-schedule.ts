@@ -37,11 +37,22 @@ export function retryDelayMs(failures: number, options: BackoffOptions = {}): nu
 	return Math.round(Math.min(maxMs, raw * spread));
 }
 
-/** The wait before the next automatic sync, given how many entries wait and how many tries failed in a row. */
+/**
+ * The wait before the next automatic sync, given how many entries wait, how many tries failed in a
+ * row and, when the server said so (503 or 429 with Retry-After), how long it asked to be left
+ * alone. The device never comes back before the server asked; the spread goes only later, so a
+ * room of phones told the same time do not all return in the same second.
+ */
 export function nextSyncDelayMs(
-	state: { pending: number; failures: number },
+	state: { pending: number; failures: number; retryAfterMs?: number | null },
 	options: BackoffOptions = {}
 ): number {
+	const { maxMs = SYNC_MAX_DELAY_MS, jitter = 0.2, random = Math.random } = options;
+	if (state.failures > 0 && state.retryAfterMs != null) {
+		const asked = Math.min(maxMs, state.retryAfterMs);
+		const spread = asked * (1 + jitter * random());
+		return Math.round(Math.min(maxMs, Math.max(spread, retryDelayMs(state.failures, options))));
+	}
 	if (state.failures > 0) return retryDelayMs(state.failures, options);
 	if (state.pending > 0) return options.baseMs ?? SYNC_BASE_DELAY_MS;
 	return SYNC_IDLE_POLL_MS;
@@ -65,4 +76,47 @@ export function batches<T>(items: readonly T[], size: number): T[][] {
 	const out: T[][] = [];
 	for (let i = 0; i < items.length; i += size) out.push(items.slice(i, i + size));
 	return out;
+}
+
+/**
+ * How long a Retry-After header asks to wait, in ms: delay-seconds or an HTTP date (RFC 9110
+ * §10.2.3). Null when absent or unreadable; a date in the past is 0.
+ */
+export function parseRetryAfter(value: string | null | undefined, nowMs: number): number | null {
+	if (value == null) return null;
+	const v = value.trim();
+	if (/^\d+$/.test(v)) return Number(v) * 1000;
+	if (!/[a-z]/i.test(v)) return null; // "-5", "1.5": neither form
+	const at = Date.parse(v);
+	if (Number.isNaN(at)) return null;
+	return Math.max(0, at - nowMs);
+}
+
+/**
+ * What the sync loop does with an answer to a batch of `size` entries that was not a success
+ * (401 aside, which means signed out):
+ * - `split`: send the halves on their own, so one entry the server cannot take is found and set
+ *   aside while the rest go through — for 400 and 413 (the request was refused) and for a failure
+ *   inside the server (500 and the other 5xx), which one bad entry can cause;
+ * - `reject`: a single entry the server refused (400, 413): set it aside for a person;
+ * - `suspect`: a single entry the server failed on: set it aside only when other entries went
+ *   through in the same pass (the server works, this entry is the trouble), else wait and retry;
+ * - `wait`: keep everything and try again later — the server is busy or not reached (502, 503,
+ *   504 from a proxy or an overloaded server, 429) or refused for another reason (403, 404, …).
+ */
+export type RefusalAction = 'split' | 'reject' | 'suspect' | 'wait';
+
+/** The action for HTTP `status` on a batch of `size` entries (see RefusalAction). */
+export function refusalAction(status: number, size: number): RefusalAction {
+	if (status === 400 || status === 413) return size > 1 ? 'split' : 'reject';
+	if (status >= 500 && status <= 599 && ![502, 503, 504].includes(status)) {
+		return size > 1 ? 'split' : 'suspect';
+	}
+	return 'wait';
+}
+
+/** The two halves of a batch being split (the first one the larger when the size is odd). */
+export function halves<T>(items: readonly T[]): [T[], T[]] {
+	const mid = Math.ceil(items.length / 2);
+	return [items.slice(0, mid), items.slice(mid)];
 }

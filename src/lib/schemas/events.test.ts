@@ -213,6 +213,29 @@ describe('payloads — rejected with a clear message per field', () => {
 		]);
 		expect(errorsOf(envelope('hold', {}))['payload.reason']).toEqual(['Reason must be text']);
 	});
+
+	it('texts must be valid Unicode: a lone surrogate is refused with a reason, a pair is kept', () => {
+		const notUnicode =
+			'Text contains text that is not valid Unicode (a lone surrogate); retype it.';
+		expect(errorsOf(envelope('note', { text: 'worn \ud800' }))['payload.text']).toEqual([
+			notUnicode
+		]);
+		expect(errorsOf(envelope('note', { text: '\udc00 at start' }))['payload.text']).toEqual([
+			notUnicode
+		]);
+		expect(
+			errorsOf(envelope('cleaning', { method: 'other', relubricated: true, lubricant: 'x\udbff' }))[
+				'payload.lubricant'
+			]
+		).toEqual(['Lubricant contains text that is not valid Unicode (a lone surrogate); retype it.']);
+		expect(
+			errorsOf({ ...envelope('note', { text: 'ok' }), fixtureCode: 'NM-\ud83d' }).fixtureCode
+		).toEqual([
+			'Fixture code contains text that is not valid Unicode (a lone surrogate); retype it.'
+		]);
+		// A surrogate pair is one real character (U+1F527, a wrench) and is fine.
+		expect(parseSyncEvent(envelope('note', { text: 'swap \ud83d\udd27 done' })).ok).toBe(true);
+	});
 });
 
 describe('sync envelope', () => {

@@ -5,6 +5,7 @@
  */
 import { z } from 'zod';
 import type { Role } from './roles';
+import { unicodeString } from './text';
 import { inspectionVerdictSchema, wearGradeSchema, wearMarkSchema } from './wear';
 
 /** The nine kinds of fixture event. */
@@ -53,8 +54,7 @@ const micrometres = (field: string) =>
 		.max(MAX_READING_UM, `${field} must be between −${MAX_READING_UM} and ${MAX_READING_UM} µm`);
 
 const text = (field: string, max: number) =>
-	z
-		.string({ error: `${field} must be text` })
+	unicodeString(field, `${field} must be text`)
 		.trim()
 		.min(1, `${field} must not be empty`)
 		.max(max, `${field} must be at most ${max} characters`);

@@ -7,6 +7,7 @@ import {
 	FIXTURE_TYPE_LABELS,
 	FLAG_KINDS
 } from './fixture';
+import { unicodeString } from './text';
 
 /*
  * Schemas for creating, editing and listing fixtures, shared by the form pages, the JSON API and
@@ -69,7 +70,7 @@ function numberField({ unit, int = false, above = 0, max, label }: NumberOpts) {
 function textField(max: number, label: string) {
 	return z.preprocess(
 		blankToNull,
-		z.string().max(max, `${label} can be at most ${max} characters.`).nullable()
+		unicodeString(label).max(max, `${label} can be at most ${max} characters.`).nullable()
 	);
 }
 
@@ -121,8 +122,7 @@ function enumField<const T extends readonly [string, ...string[]]>(
 export const fixtureFieldsSchema = z.object({
 	name: z.preprocess(
 		(v) => (typeof v === 'string' ? v.trim() : v),
-		z
-			.string({ error: 'Give the fixture a name.' })
+		unicodeString('The name', 'Give the fixture a name.')
 			.min(1, 'Give the fixture a name.')
 			.max(160, 'A name can be at most 160 characters.')
 	),

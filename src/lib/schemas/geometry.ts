@@ -2,6 +2,7 @@ import { z } from 'zod';
 import type { Contact } from '$lib/domain/constraints';
 import { threeVeeContacts, trihedralVeeFlatContacts } from '$lib/domain/coupling-geometry';
 import { ISO76_BALL_LIMIT_MPA, MATERIALS, MATERIAL_SOURCES } from '$lib/domain/hertz';
+import { unicodeString } from './text';
 
 /*
  * The coupling geometry form, shared by the page (field names, defaults) and its actions. Form
@@ -77,7 +78,7 @@ const contactRow = z.object({
 	nx: num({ label: 'Normal x' }),
 	ny: num({ label: 'Normal y' }),
 	nz: num({ label: 'Normal z' }),
-	label: z.string().trim().max(60, 'A label can be at most 60 characters.').optional()
+	label: unicodeString('A label').trim().max(60, 'A label can be at most 60 characters.').optional()
 });
 
 /** Everything the geometry form sends. */

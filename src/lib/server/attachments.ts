@@ -7,7 +7,7 @@
 import { createHash } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
-import { sniffImage, type ImageType } from '$lib/domain/image-type';
+import { imageSizeProblem, sniffImage, type ImageType } from '$lib/domain/image-type';
 import { PHOTO_LIMIT_BYTES } from '$lib/schemas/attachments';
 import { mayLogKind } from '$lib/schemas/events';
 import { db, schema } from './db';
@@ -75,6 +75,8 @@ function checkImage(bytes: Uint8Array, field: string, limit: number, what: strin
 		const m = `The ${what} is not a JPEG, PNG or WebP image (whatever its name says).`;
 		throw new UploadError(400, m, { [field]: m });
 	}
+	const size = imageSizeProblem(info);
+	if (size) throw new UploadError(400, size, { [field]: size });
 	return info.type;
 }
 

@@ -451,7 +451,13 @@ async function insertNew(
 		for (const item of candidates) item.result = { id: item.sentId, status: 'accepted' };
 		return candidates;
 	} catch (err) {
-		if ((err as { errno?: number }).errno !== ER_DUP_ENTRY) throw err;
+		const errno = (err as { errno?: number }).errno;
+		// The schemas refuse what the database cannot store; should something still slip past
+		// them, it costs that one event, never the batch.
+		if (errno !== undefined && DATA_ERRORS.has(errno)) {
+			return insertOneByOne(conn, candidates, (item) => rows([item]));
+		}
+		if (errno !== ER_DUP_ENTRY) throw err;
 	}
 	const stored = await storedHashes(conn, candidates);
 	const fresh: Item[] = [];
@@ -465,6 +471,49 @@ async function insertNew(
 	}
 	// Another duplicate here means a third batch raced this one: the whole batch is retried.
 	if (fresh.length) await conn.query(INSERT_EVENTS, [rows(fresh)]);
+	return fresh;
+}
+
+/**
+ * MariaDB errors that say a value cannot be stored (a CHECK such as json_valid, a string the
+ * column's character set refuses, too long, out of range, a bad date) rather than that the
+ * database is in trouble.
+ */
+const DATA_ERRORS = new Set([4025, 3140, 1366, 1406, 1264, 1292, 1367]);
+
+/**
+ * The slow path of insertNew: one statement per event, so an event the database refuses is
+ * rejected alone (a failed statement is undone on its own; the transaction goes on).
+ */
+async function insertOneByOne(
+	conn: PoolConnection,
+	candidates: Item[],
+	row: (item: Item) => unknown[][]
+): Promise<Item[]> {
+	const stored = await storedHashes(conn, candidates);
+	const fresh: Item[] = [];
+	for (const item of candidates) {
+		const known = judgeStored(item, stored);
+		if (known) {
+			item.result = known;
+			continue;
+		}
+		try {
+			await conn.query(INSERT_EVENTS, [row(item)]);
+		} catch (err) {
+			const errno = (err as { errno?: number }).errno;
+			if (errno === undefined || !DATA_ERRORS.has(errno)) throw err;
+			item.result = {
+				id: item.sentId,
+				status: 'rejected',
+				error:
+					'The database could not store this event (a value it cannot hold); check its text and numbers.'
+			};
+			continue;
+		}
+		item.result = { id: item.sentId, status: 'accepted' };
+		fresh.push(item);
+	}
 	return fresh;
 }
 

@@ -203,6 +203,28 @@ describe('photo uploads against s3rver', () => {
 		).toEqual([]);
 	});
 
+	it('answers 400 JSON, not 500, to a PNG whose header claims 2^31 pixels, and stores nothing', async () => {
+		const bytes = png(4, 4);
+		// IHDR width and height sit at bytes 16–23, big-endian (PNG specification §11.2.2).
+		new DataView(bytes.buffer, bytes.byteOffset).setUint32(16, 2 ** 31);
+		new DataView(bytes.buffer, bytes.byteOffset).setUint32(20, 2 ** 32 - 1);
+		const res = await call(
+			putPhoto,
+			tech,
+			upload(photoIds[2], { fixtureCode: code, eventId }, bytes),
+			{ id: photoIds[2] }
+		);
+		expect(res.status).toBe(400);
+		const body = await res.json();
+		expect(body.error).toBe(
+			'The image header claims a width of 2147483648 pixels; at most 65535 is accepted.'
+		);
+		expect(body.fields.file).toBe(body.error);
+		expect(
+			await db.select().from(schema.attachments).where(eq(schema.attachments.id, photoIds[2]))
+		).toEqual([]);
+	});
+
 	it('rejects a photo over the size limit and stores nothing', async () => {
 		const big = new Uint8Array(PHOTO_LIMIT_BYTES + 1);
 		big.set(png(4, 4));

@@ -118,6 +118,36 @@ describe('POST /api/sync', () => {
 		expect(results.filter((r: { status: string }) => r.status === 'accepted')).toHaveLength(500);
 	});
 
+	it('rejects alone an event whose text is not valid Unicode, and stores the other 100', async () => {
+		const before = await storedEvents();
+		const good = Array.from({ length: 100 }, (_, i) => reseat(code, 2000 - i));
+		const bad = {
+			id: randomUUID(),
+			fixtureCode: code,
+			kind: 'note',
+			occurredAt: new Date(Date.now() - 60_000).toISOString(),
+			payload: { text: 'seat 2 chipped \ud800 see photo' }
+		};
+		// JSON.stringify writes the lone surrogate as the escape "\ud800", as a phone's would.
+		const body = JSON.stringify({
+			deviceId: 'p',
+			events: [...good.slice(0, 50), bad, ...good.slice(50)]
+		});
+		expect(body).toContain('\\ud800');
+		const res = await call(postSync, tech, syncRequest(body));
+		expect(res.status).toBe(200);
+		const { results } = await res.json();
+		expect(results).toHaveLength(101);
+		expect(results[50]).toEqual({
+			id: bad.id,
+			status: 'rejected',
+			error: expect.stringMatching(/payload\.text: Text contains text that is not valid Unicode/)
+		});
+		const accepted = results.filter((r: { status: string }) => r.status === 'accepted');
+		expect(accepted).toHaveLength(100);
+		expect(await storedEvents()).toBe(before + 100);
+	});
+
 	it('answers 400 for a body over the size limit, by its declared length or its real size', async () => {
 		const big = JSON.stringify({
 			deviceId: 'p',
