@@ -18,7 +18,7 @@
  */
 import { execFile, spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
-import { rmSync } from 'node:fs';
+import { createWriteStream, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { promisify } from 'node:util';
 import mysql from 'mysql2/promise';
@@ -43,7 +43,7 @@ const S3_PORT = Number(process.env.SOAK_S3_PORT ?? 4580);
 /** The whole soak, set-up and checks included, stops by itself after this long. */
 const TIMEOUT_MS = Number(process.env.SOAK_TIMEOUT_MIN ?? 15) * 60_000;
 /** Time kept back at the end for the checks: phones stop this long before the timeout. */
-const CHECK_RESERVE_MS = 3 * 60_000;
+const CHECK_RESERVE_MS = Math.max(60_000, TIMEOUT_MS / 5);
 const FIXTURES_PER_DEVICE = 4;
 const PASSWORD = `soak-${randomBytes(9).toString('base64url')}`;
 const ACCOUNTS = [
@@ -79,6 +79,16 @@ const say = (line: string) => console.log(`  [${secs(Date.now() - started).padSt
 
 let app: App | undefined;
 let s3: ChildProcess | undefined;
+/** What the app writes to stderr, across its restarts, for a look after a failure. */
+const APP_LOG = join(ROOT, '.data', 'soak-app.log');
+const appLog = createWriteStream(APP_LOG);
+
+/** Starts the built app on the soak's port, its stderr going to APP_LOG. */
+async function launchApp(url: string): Promise<App> {
+	const started = await startApp(PORT, url, APP_ENV);
+	started.child.stderr?.pipe(appLog, { end: false });
+	return started;
+}
 
 /** A fault as it happened: when it was caused and when the server answered again. */
 interface Fault {
@@ -127,7 +137,7 @@ async function injectFaults(run: Run, total: number, url: string): Promise<Fault
 		const gone = new Promise((r) => victim.child.once('exit', r));
 		victim.child.kill('SIGKILL');
 		await gone;
-		app = await startApp(PORT, url, APP_ENV);
+		app = await launchApp(url);
 		faults.push({ name: 'kill -9 of the app', at, back: Date.now() });
 		say(`app answering again (pid ${app.child.pid}) after ${secs(Date.now() - at)}`);
 	}
@@ -273,7 +283,7 @@ async function soak(): Promise<boolean> {
 	});
 	const works = Array.from({ length: DEVICES }, (_, d) => makeWork(d, codes, EVENTS));
 	const photoCount = works.reduce((n, w) => n + w.photos.length, 0);
-	app = await startApp(PORT, url, APP_ENV);
+	app = await launchApp(url);
 	say(
 		`${fmt(codes.length)} fixtures, ${ACCOUNTS.length} accounts, ${fmt(photoCount)} photos to send; app pid ${app.child.pid}`
 	);
@@ -348,18 +358,29 @@ async function cleanUp(passed: boolean): Promise<void> {
 	if (app) await stopApp(app);
 	if (s3 && s3.exitCode === null) s3.kill('SIGTERM');
 	const keep = !passed || process.env.SOAK_KEEP_DB === '1';
-	if (keep) console.log(`  the scratch database ${DB} is kept for a look`);
+	if (keep)
+		console.log(
+			`  the scratch database ${DB} is kept for a look; the app's errors are in ${APP_LOG}`
+		);
 	else dropScratchDb(DB, false);
 }
 
-// However the run goes, it stops: after the timeout whatever is running is killed and it fails.
-const hardStop = setTimeout(() => {
-	console.error(`\nSoak FAILED: not finished within ${secs(TIMEOUT_MS)}`);
+/** Ends the soak at once, killing what it started (by PID). */
+function abandon(why: string, code: number): never {
+	console.error(`\nSoak FAILED: ${why}`);
 	if (app?.child.exitCode === null) app.child.kill('SIGKILL');
 	if (s3?.exitCode === null) s3.kill('SIGKILL');
-	process.exit(1);
-}, TIMEOUT_MS);
+	process.exit(code);
+}
+
+// However the run goes, it stops: after the timeout whatever is running is killed and it fails.
+const hardStop = setTimeout(
+	() => abandon(`not finished within ${secs(TIMEOUT_MS)}`, 1),
+	TIMEOUT_MS
+);
 hardStop.unref();
+process.once('SIGINT', () => abandon('interrupted', 130));
+process.once('SIGTERM', () => abandon('interrupted', 130));
 
 let passed = false;
 try {

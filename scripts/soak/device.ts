@@ -1,20 +1,32 @@
 /**
  * One simulated phone of the soak. It follows the rules of the phone's sync loop
- * (src/lib/client/sync.svelte.ts) and photo uploads (src/lib/client/photos.ts):
+ * (src/lib/client/sync.svelte.ts) and photo uploads (src/lib/client/photos.ts), with the same
+ * pure pieces from src/lib/domain/sync-schedule.ts:
  *
  * - the outbox goes to `POST /api/sync` in batches of SYNC_BATCH_SIZE, oldest first, one pass at a
  *   time, stopping at the first batch that fails; accepted and duplicate entries leave it;
- * - a request refused as a whole (400, 413) is split and sent entry by entry;
- * - no answer (network, abort, timeout) or a 5xx: the entries stay and the next pass comes after
- *   retryDelayMs(failures) — or after the server's Retry-After on a 503;
+ * - a batch refused or failed on as a whole is split in halves (refusalAction, halves); a single
+ *   entry refused (400, 413) is set aside, one failed on (5xx) is set aside only when the server
+ *   took other entries in the same pass, else the pass fails;
+ * - no answer (network, abort, timeout), 502–504 or 429: the entries stay and the next pass comes
+ *   after nextSyncDelayMs — the back-off, and never before the server's Retry-After;
  * - 401: the person signs in again;
  * - photos go up by `PUT /api/attachments/{id}` only after their event has left the outbox.
  *
- * Unlike the phone it sends at once (no undo window) and logs its next burst of entries while it
- * waits, as a person at a machine does, so its outbox grows during an outage. Some requests are
- * aborted by the client at a random moment, as a phone losing its network mid-request would.
+ * Unlike the phone it sends at once (no undo window, no 5 s wait between passes) and logs its next
+ * burst of entries while it waits, as a person at a machine does, so its outbox grows during an
+ * outage. Some requests are aborted by the client at a random moment, as a phone losing its
+ * network mid-request would. Anything set aside or refused is a problem: the server was healthy
+ * enough to take it.
  */
-import { batches, retryDelayMs, SYNC_BATCH_SIZE } from '../../src/lib/domain/sync-schedule.ts';
+import {
+	batches,
+	halves,
+	nextSyncDelayMs,
+	parseRetryAfter,
+	refusalAction,
+	SYNC_BATCH_SIZE
+} from '../../src/lib/domain/sync-schedule.ts';
 import { seededRandom } from '../../src/lib/domain/fixture-code.ts';
 import type { OutEvent, OutPhoto, Work } from './workload.ts';
 
@@ -24,14 +36,9 @@ const ABORT_RATE = 0.03;
 const ABORT_WITHIN_MS = 400;
 /** A request with no answer by then is given up as the phone's fetch would be by the OS. */
 const REQUEST_TIMEOUT_MS = 60_000;
-/** Longest Retry-After honoured (a wrong header must not park a phone for the rest of the run). */
-const MAX_RETRY_AFTER_MS = 60_000;
 /** Entries logged between passes, and the pause after a good pass. */
 const BURST_MAX = 120;
 const PAUSE_MAX_MS = 1_000;
-
-/** Why a request or pass did not go through; each one is a retry. */
-export type Cause = 'aborted' | 'network' | 'timeout' | 'signed-out' | 'split' | `http ${number}`;
 
 /** One request as the clock saw it, for the unavailability figures. */
 export interface Attempt {
@@ -48,7 +55,8 @@ export interface Run {
 	deadline: number;
 	/** Sync requests answered 200: latency in ms. */
 	latencies: number[];
-	retries: Map<Cause, number>;
+	/** Failed passes by cause ("aborted", "network", "http 503", …) and batch splits. */
+	retries: Map<string, number>;
 	answers: { accepted: number; duplicate: number; rejected: number };
 	attempts: Attempt[];
 	/** Things that must not happen: rejected events, refused photos, odd answers. */
@@ -58,17 +66,14 @@ export interface Run {
 }
 
 type Answer = { status: number; headers: Headers; body: Buffer };
-type PassResult = { ok: true } | { ok: false; cause: Cause; waitMs?: number };
+type Outcome = { ok: true } | { ok: false; cause: string; retryAfterMs?: number | null };
+/** What a pass learnt: whether the server took anything, and the entries it failed on alone. */
+type PassReport = { answered: boolean; suspects: { event: OutEvent; status: number }[] };
 
-const count = (run: Run, cause: Cause) => run.retries.set(cause, (run.retries.get(cause) ?? 0) + 1);
+const OK: Outcome = { ok: true };
+const count = (run: Run, cause: string) =>
+	run.retries.set(cause, (run.retries.get(cause) ?? 0) + 1);
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
-/** Retry-After as ms: delay-seconds or an HTTP date (RFC 9110 §10.2.3); null when absent or unreadable. */
-export function retryAfterMs(value: string | null, now = Date.now()): number | null {
-	if (!value) return null;
-	const ms = /^\d+$/.test(value.trim()) ? Number(value) * 1000 : Date.parse(value) - now;
-	return Number.isFinite(ms) ? Math.min(MAX_RETRY_AFTER_MS, Math.max(0, ms)) : null;
-}
 
 /** The sign-in form's request: e-mail and password, form-encoded (send it with an Origin header). */
 export function signInRequest(account: { email: string; password: string }): RequestInit {
@@ -97,6 +102,7 @@ export class Device {
 	readonly #sent = new Set<string>();
 	#logged = 0;
 	#failures = 0;
+	#retryAfterMs: number | null = null;
 	#cookie = '';
 	readonly #random: () => number;
 
@@ -127,33 +133,42 @@ export class Device {
 			const pass = await this.#pass();
 			if (pass.ok) {
 				this.#failures = 0;
+				this.#retryAfterMs = null;
 				if (this.#logged === work.events.length && !this.outbox.length && !this.photos.length)
 					return;
 				await sleep(this.#random() * PAUSE_MAX_MS);
 			} else {
 				this.#failures += 1;
+				if (pass.retryAfterMs != null) this.#retryAfterMs = pass.retryAfterMs;
 				count(run, pass.cause);
-				const wait = pass.waitMs ?? retryDelayMs(this.#failures);
+				const wait = nextSyncDelayMs({
+					pending: this.outbox.length,
+					failures: this.#failures,
+					retryAfterMs: this.#retryAfterMs
+				});
 				await sleep(Math.min(wait, Math.max(0, run.deadline - Date.now())));
 			}
 		}
 	}
 
 	/** One pass of the loop: every batch, then the photos whose event the server has. */
-	async #pass(): Promise<PassResult> {
+	async #pass(): Promise<Outcome> {
 		if (!this.#cookie) {
 			const signedIn = await this.#signIn();
 			if (!signedIn.ok) return signedIn;
 		}
+		const report: PassReport = { answered: false, suspects: [] };
+		let outcome = OK;
 		for (const batch of batches([...this.outbox], SYNC_BATCH_SIZE)) {
-			const r = await this.#send(batch);
-			if (!r.ok) return r;
+			outcome = await this.#send(batch, report);
+			if (!outcome.ok) break;
 		}
-		return this.#uploadPhotos();
+		outcome = this.#settleSuspects(report, outcome);
+		return outcome.ok ? this.#uploadPhotos() : outcome;
 	}
 
-	/** Sends one batch and files the answers. */
-	async #send(batch: OutEvent[]): Promise<PassResult> {
+	/** Sends one batch and files the answers, splitting it as the phone does. */
+	async #send(batch: OutEvent[], report: PassReport): Promise<Outcome> {
 		const firstTime = new Set(batch.filter((e) => !this.#sent.has(e.id)).map((e) => e.id));
 		for (const e of batch) this.#sent.add(e.id);
 		const started = Date.now();
@@ -170,23 +185,45 @@ export class Device {
 				results: { id: string; status: string; error?: string }[];
 			};
 			this.#file(batch, results, firstTime);
-			return { ok: true };
+			report.answered = true;
+			return OK;
 		}
-		if ((res.status === 400 || res.status === 413) && batch.length > 1) {
-			// Refused as a whole: entry by entry, so only the one the server cannot take is set aside.
-			count(this.run, 'split');
-			for (const entry of batch) {
-				const single = await this.#send([entry]);
-				if (!single.ok) return single;
+		const action = refusalAction(res.status, batch.length);
+		if (action === 'split') {
+			count(this.run, `batch split on ${res.status}`);
+			for (const half of halves(batch)) {
+				const outcome = await this.#send(half, report);
+				if (!outcome.ok) return outcome;
 			}
-			return { ok: true };
+			return OK;
 		}
-		if (res.status === 400 || res.status === 413) {
-			this.#setAside(batch[0], `refused as a whole (${res.status}): ${res.body.toString('utf8')}`);
-			return { ok: true };
+		if (action === 'reject') {
+			report.answered = true;
+			this.#setAside(batch[0], `refused (${res.status}): ${res.body.toString('utf8')}`);
+			return OK;
 		}
-		const waitMs = res.status === 503 ? retryAfterMs(res.headers.get('retry-after')) : null;
-		return { ok: false, cause: `http ${res.status}`, ...(waitMs === null ? {} : { waitMs }) };
+		if (action === 'suspect') {
+			report.suspects.push({ event: batch[0], status: res.status });
+			return OK;
+		}
+		const asked = res.status === 503 || res.status === 429;
+		return {
+			ok: false,
+			cause: `http ${res.status}`,
+			retryAfterMs: asked ? parseRetryAfter(res.headers.get('retry-after'), Date.now()) : null
+		};
+	}
+
+	/** Entries failed on alone: set aside if the server took others in this pass, else retried. */
+	#settleSuspects(report: PassReport, outcome: Outcome): Outcome {
+		if (!report.suspects.length) return outcome;
+		if (report.answered) {
+			for (const { event, status } of report.suspects) {
+				this.#setAside(event, `set aside after a ${status} on it alone while others went through`);
+			}
+			return outcome;
+		}
+		return outcome.ok ? { ok: false, cause: `http ${report.suspects[0].status}` } : outcome;
 	}
 
 	#file(
@@ -231,7 +268,7 @@ export class Device {
 	}
 
 	/** Uploads the waiting photos whose event has left the outbox, oldest first. */
-	async #uploadPhotos(): Promise<PassResult> {
+	async #uploadPhotos(): Promise<Outcome> {
 		const waiting = new Set(this.outbox.map((e) => e.id));
 		for (const photo of this.photos.filter((p) => !waiting.has(p.eventId))) {
 			const form = new FormData();
@@ -264,12 +301,12 @@ export class Device {
 		return { ok: true };
 	}
 
-	async #signedOut(): Promise<PassResult> {
+	#signedOut(): Outcome {
 		this.#cookie = '';
-		return { ok: false, cause: 'signed-out', waitMs: 0 };
+		return { ok: false, cause: 'signed out' };
 	}
 
-	async #signIn(): Promise<PassResult> {
+	async #signIn(): Promise<Outcome> {
 		const res = await this.#request('/auth/callback/credentials', signInRequest(this.account));
 		if (typeof res === 'string') return { ok: false, cause: res };
 		const cookie = sessionCookie(res.headers);
