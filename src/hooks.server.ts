@@ -1,10 +1,18 @@
-import { error, json, redirect, type Handle, type ServerInit } from '@sveltejs/kit';
+import {
+	error,
+	json,
+	redirect,
+	type Handle,
+	type HandleServerError,
+	type ServerInit
+} from '@sveltejs/kit';
 import { building } from '$app/environment';
 import { sequence } from '@sveltejs/kit/hooks';
 import type { Role } from '$lib/schemas/roles';
 import { authHandle, type SessionWithStart } from '$lib/server/auth';
 import { startDueScan } from '$lib/server/due-scan';
 import { hasRole } from '$lib/server/guard';
+import { overloadError, overloadHandle } from '$lib/server/overload';
 import { loadSessionUser } from '$lib/server/users';
 
 /** API paths anyone may call without signing in. */
@@ -45,6 +53,11 @@ const locals: Handle = async ({ event, resolve }) => {
 	event.cookies.set = (name, value, opts) =>
 		set(name, value, { ...opts, secure: opts.secure ?? secure });
 
+	// Public API answers (the health check) need nobody's identity, and must not wait on the pool.
+	if (PUBLIC_API.has(event.url.pathname)) {
+		event.locals.user = null;
+		return resolve(event);
+	}
 	const session: SessionWithStart | null = await event.locals.auth();
 	const id = session?.user?.id;
 	event.locals.user = id ? await loadSessionUser(id, session?.signedInAt) : null;
@@ -92,7 +105,18 @@ const guard: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
-export const handle: Handle = sequence(requestLog, authHandle, locals, guard);
+export const handle: Handle = sequence(requestLog, overloadHandle, authHandle, locals, guard);
+
+/** Overloads (database pool saturated or unreachable) become 503 + Retry-After; see overload.ts. */
+export const handleError: HandleServerError = ({ error, event, status, message }) => {
+	const busy = overloadError(error, event);
+	if (busy) return busy;
+	// As SvelteKit's default: one line for a 404, with the stack for anything else.
+	const where = `[${status}] ${event.request.method} ${event.url.pathname}`;
+	if (status === 404) console.error(where);
+	else console.error(where, error);
+	return { message };
+};
 
 /** Starts the calendar scan (cleaning and inspection due by days) once per server process. */
 export const init: ServerInit = () => {

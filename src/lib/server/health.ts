@@ -20,7 +20,7 @@ import {
 	type FixtureState
 } from '../domain/health';
 import type { FixtureEvent } from '../schemas/events';
-import { getPool } from './db';
+import { getPool, withConnection } from './db';
 import { canonicalJson } from './fixtures';
 import {
 	diffFlags,
@@ -94,9 +94,12 @@ function flagChange(fixtureId: number, diff: ReturnType<typeof diffFlags>): Flag
 	};
 }
 
-async function inTransaction<T>(fn: (conn: PoolConnection) => Promise<T>): Promise<T> {
-	const conn = await getPool().getConnection();
-	try {
+/**
+ * One transaction on one pooled connection. Everything inside goes through `conn`: what needs
+ * the pool (fixtures, policies) is read before, so no connection is held while waiting for another.
+ */
+function inTransaction<T>(fn: (conn: PoolConnection) => Promise<T>): Promise<T> {
+	return withConnection(async (conn) => {
 		await conn.query('SET TRANSACTION ISOLATION LEVEL READ COMMITTED');
 		await conn.beginTransaction();
 		try {
@@ -107,9 +110,7 @@ async function inTransaction<T>(fn: (conn: PoolConnection) => Promise<T>): Promi
 			await conn.rollback().catch(() => undefined);
 			throw err;
 		}
-	} finally {
-		conn.release();
-	}
+	});
 }
 
 function chunks<T>(list: T[], size = CHUNK): T[][] {

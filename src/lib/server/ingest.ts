@@ -28,8 +28,12 @@
  *   (FOR UPDATE, in fixture id order, so two batches cannot deadlock on them). Two phones sending
  *   the same new id at once: the second waits on the fixture lock, or hits the primary key; the
  *   whole batch is then retried and answers `duplicate`.
+ * - One connection. The batch takes one pooled connection and reads everything through it
+ *   (fixtures, policies, the transaction); it never asks the pool for a second one while holding
+ *   it, so any number of concurrent batches drain through the pool instead of waiting on each
+ *   other (see db/pool.ts).
  * - Speed. A handful of statements per batch, not per event: one lookup of the fixtures, one of
- *   the existing ids, one locking read of the states, one multi-row insert of the events, one read
+ *   their policies, one of the existing ids, one locking read of the states, one multi-row insert of the events, one read
  *   of the open flags, one multi-row upsert of the states and one of the flags.
  */
 import { createHash } from 'node:crypto';
@@ -55,7 +59,7 @@ import {
 	type SyncEvent
 } from '../schemas/events';
 import { ROLES, type Role } from '../schemas/roles';
-import { getPool } from './db';
+import { withConnection } from './db';
 import { canonicalJson } from './fixtures';
 import type { Actor } from './guard';
 import {
@@ -253,8 +257,10 @@ export async function ingestBatch(
 		else firstById.set(item.id, item);
 	}
 
-	const conn = await getPool().getConnection();
-	try {
+	// One connection for the whole batch, and everything the batch reads goes through it: the
+	// fixtures, their policies, the transaction. Asking the pool for a second connection while
+	// holding this one wedged the server once every connection was held by a batch doing so.
+	await withConnection(async (conn) => {
 		const fixtures = await lookUpFixtures(conn, items);
 		for (const item of items) {
 			if (!item.event) continue;
@@ -265,7 +271,8 @@ export async function ingestBatch(
 			item.hash = contentHash({ ...item.event, fixtureCode: code });
 		}
 		const policies = await policiesFor(
-			new Set(items.filter((i) => i.fixture && !i.repeatOf).map((i) => i.fixture!))
+			new Set(items.filter((i) => i.fixture && !i.repeatOf).map((i) => i.fixture!)),
+			conn
 		);
 
 		for (let attempt = 1; ; attempt++) {
@@ -278,9 +285,7 @@ export async function ingestBatch(
 				for (const item of items) if (item.event) item.result = undefined;
 			}
 		}
-	} finally {
-		conn.release();
-	}
+	});
 
 	return items.map((item) => item.result!);
 }

@@ -4,6 +4,7 @@
  * (event by event, ./ingest.ts) and by the health jobs (rebuild, calendar scan, policy change,
  * ./health.ts), so both start folds alike and write flags alike.
  */
+import { getTableColumns } from 'drizzle-orm';
 import type { PoolConnection, RowDataPacket } from 'mysql2/promise';
 import {
 	initialState,
@@ -15,7 +16,9 @@ import {
 import type { Policy } from '../domain/policy';
 import type { FixtureType } from '../schemas/fixture';
 import { canonicalJson } from './fixtures';
-import { effectivePolicy, policyValues, type PolicySubject } from './policies';
+import { getPool } from './db';
+import { policies } from './db/schema';
+import { indexPolicyRows, policyValues, resolvePolicy, type PolicySubject } from './policies';
 
 /** What folding and flagging need to know about a fixture. */
 export interface HealthFixture extends PolicySubject {
@@ -51,29 +54,40 @@ export function toHealthFixture(r: RowDataPacket): HealthFixture {
 	};
 }
 
-/** The effective policy of each fixture, asked once per distinct set of policy inputs. */
-export async function policiesFor(fixtures: Iterable<HealthFixture>): Promise<Map<number, Policy>> {
-	const byKey = new Map<string, { subject: PolicySubject; ids: number[] }>();
-	for (const f of fixtures) {
-		const subject: PolicySubject = {
-			type: f.type,
-			policyId: f.policyId,
-			policyOverrides: f.policyOverrides,
-			repeatabilitySpec_um: f.repeatabilitySpec_um,
-			ratedLifeCycles: f.ratedLifeCycles
-		};
-		const key = canonicalJson(subject);
-		const entry = byKey.get(key);
-		if (entry) entry.ids.push(f.id);
-		else byKey.set(key, { subject, ids: [f.id] });
-	}
+/** What can run a statement: the pool, or a connection a caller already holds. */
+export type Queryable = Pick<PoolConnection, 'query'>;
+
+const POLICY_COLUMNS = getTableColumns(policies);
+
+/**
+ * The effective policy of each fixture, from one read of the policy rows that bear on them.
+ * Reads through `q`: a caller that holds a connection passes it, because asking the pool for
+ * another while holding one is how a burst of syncs once wedged the server (every connection held
+ * by a batch waiting for a second one). Without `q` the read takes its own pool connection.
+ */
+export async function policiesFor(
+	fixtures: Iterable<HealthFixture>,
+	q?: Queryable
+): Promise<Map<number, Policy>> {
+	const list = [...fixtures];
 	const out = new Map<number, Policy>();
-	await Promise.all(
-		[...byKey.values()].map(async ({ subject, ids }) => {
-			const policy = policyValues(await effectivePolicy(subject));
-			for (const id of ids) out.set(id, policy);
-		})
+	if (!list.length) return out;
+	const types = [...new Set(list.map((f) => f.type))];
+	const classIds = [...new Set(list.flatMap((f) => (f.policyId ? [f.policyId] : [])))];
+	const [rows] = await (q ?? getPool()).query<RowDataPacket[]>(
+		`SELECT * FROM policies WHERE fixture_type IN (?)${classIds.length ? ' OR id IN (?)' : ''}`,
+		classIds.length ? [types, classIds] : [types]
 	);
+	// Raw rows in the shape Drizzle would give (camelCase keys), so resolvePolicy reads them alike.
+	const index = indexPolicyRows(
+		rows.map(
+			(r) =>
+				Object.fromEntries(
+					Object.entries(POLICY_COLUMNS).map(([key, column]) => [key, r[column.name]])
+				) as typeof policies.$inferSelect
+		)
+	);
+	for (const f of list) out.set(f.id, policyValues(resolvePolicy(f, index)));
 	return out;
 }
 

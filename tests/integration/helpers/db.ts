@@ -10,7 +10,7 @@ import { generateFixtureCode } from '$lib/domain/fixture-code';
 import type { FixtureStatus, FixtureType, FlagKind } from '$lib/schemas/fixture';
 import type { Role } from '$lib/schemas/roles';
 import type { Actor } from '$lib/server/guard';
-import { closeDb, db, getPool, schema } from '$lib/server/db';
+import { closeDb, db, schema, withConnection } from '$lib/server/db';
 
 // `npm test` sets DATABASE_URL to the test database; running vitest by hand gets the same
 // default. The pool reads it on first use, so setting it here is early enough.
@@ -30,8 +30,7 @@ export async function resetDb(): Promise<void> {
 		throw new Error(`resetDb refuses to empty "${name}": only a database named *_test`);
 	}
 	// One connection: FOREIGN_KEY_CHECKS is a session setting.
-	const conn = await getPool().getConnection();
-	try {
+	await withConnection(async (conn) => {
 		const [rows] = await conn.query('SHOW TABLES');
 		const tables = (rows as Record<string, string>[])
 			.map((r) => Object.values(r)[0])
@@ -39,9 +38,7 @@ export async function resetDb(): Promise<void> {
 		await conn.query('SET FOREIGN_KEY_CHECKS = 0');
 		for (const t of tables) await conn.query(`TRUNCATE TABLE \`${t}\``);
 		await conn.query('SET FOREIGN_KEY_CHECKS = 1');
-	} finally {
-		conn.release();
-	}
+	});
 }
 
 let seq = 0;
