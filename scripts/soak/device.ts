@@ -310,7 +310,12 @@ export class Device {
 		const res = await this.#request('/auth/callback/credentials', signInRequest(this.account));
 		if (typeof res === 'string') return { ok: false, cause: res };
 		const cookie = sessionCookie(res.headers);
-		if (!cookie) return { ok: false, cause: `http ${res.status}` };
+		if (!cookie) {
+			// Auth.js answers a failed sign-in with a redirect that names the error.
+			const location = new URL(res.headers.get('location') ?? '/', this.run.origin);
+			const error = location.searchParams.get('error') ?? res.status;
+			return { ok: false, cause: `sign-in failed (${error})` };
+		}
 		this.#cookie = cookie;
 		return { ok: true };
 	}
