@@ -85,9 +85,9 @@ const appLog = createWriteStream(APP_LOG);
 
 /** Starts the built app on the soak's port, its stderr going to APP_LOG. */
 async function launchApp(url: string): Promise<App> {
-	const started = await startApp(PORT, url, APP_ENV);
-	started.child.stderr?.pipe(appLog, { end: false });
-	return started;
+	const launched = await startApp(PORT, url, APP_ENV);
+	launched.child.stderr?.pipe(appLog, { end: false });
+	return launched;
 }
 
 /** A fault as it happened: when it was caused and when the server answered again. */
@@ -182,11 +182,12 @@ function percentile(sorted: number[], p: number): string {
 async function checkEvents(url: string, works: Work[], deviceIds: string[]): Promise<string[]> {
 	const conn = await mysql.createConnection({ uri: url });
 	try {
-		const [rows] = await conn.query<mysql.RowDataPacket[]>('SELECT id, device_id FROM events');
-		const stored = new Map(rows.map((r) => [r.id as string, r.device_id as string]));
-		const sent = new Set(works.flatMap((w) => w.events.map((e) => e.id)));
-		const missing = [...sent].filter((id) => !stored.has(id));
+		const [rows] = await conn.query<mysql.RowDataPacket[]>('SELECT id, kind FROM events');
+		const stored = new Map(rows.map((r) => [r.id as string, r.kind as string]));
+		const sent = new Map(works.flatMap((w) => w.events.map((e) => [e.id, e.kind])));
+		const missing = [...sent.keys()].filter((id) => !stored.has(id));
 		const unknown = [...stored.keys()].filter((id) => !sent.has(id));
+		const changed = [...sent].filter(([id, kind]) => stored.has(id) && stored.get(id) !== kind);
 		const wrong: string[] = [];
 		say(
 			`events: ${fmt(sent.size)} sent, ${fmt(stored.size)} stored, ${missing.length} missing, ${unknown.length} not sent`
@@ -194,6 +195,7 @@ async function checkEvents(url: string, works: Work[], deviceIds: string[]): Pro
 		if (missing.length)
 			wrong.push(`${missing.length} events lost, e.g. ${missing.slice(0, 3).join(', ')}`);
 		if (unknown.length) wrong.push(`${unknown.length} stored events were never sent`);
+		if (changed.length) wrong.push(`${changed.length} events stored with another kind`);
 		const [perDevice] = await conn.query<mysql.RowDataPacket[]>(
 			'SELECT device_id, COUNT(*) AS n FROM events GROUP BY device_id'
 		);
