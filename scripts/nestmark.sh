@@ -662,11 +662,17 @@ cmd_db_restart() {
 	exec 8>&-
 }
 
-# Soak test (scripts/soak.ts): its own scratch database, S3 fake and app; needs a build.
+# Soak test (scripts/soak.ts): its own scratch database, S3 fake and app (built first if stale).
 cmd_soak() {
 	exec 7>"$DATA_DIR/soak.lock"
 	flock -n 7 || die "another soak from this folder is already running"
 	install_traps
+	# The soak must test the code as it is: build when there is no build or the sources are newer.
+	if [[ ! -f build/index.js ]] ||
+		[[ -n "$(find src static svelte.config.js vite.config.ts package-lock.json -newer build/index.js -print -quit)" ]]; then
+		say "building the app"
+		vite build
+	fi
 	db_up no
 	local rc=0
 	tsx scripts/soak.ts || rc=$?

@@ -13,8 +13,9 @@
  * Everything runs in a scratch database (`nestmark_soak`, recreated each run, dropped after a
  * pass; kept after a failure or with SOAK_KEEP_DB=1), an S3 fake of its own (unless one already
  * listens on SOAK_S3_PORT) and the built app on 127.0.0.1:SOAK_PORT. Run through
- * `npm run soak` (scripts/nestmark.sh soak), which brings up the project's MariaDB; needs
- * `npm run build`. SOAK_DEVICES and SOAK_EVENTS make it smaller for a quick look.
+ * `npm run soak` (scripts/nestmark.sh soak), which builds the app when the build is missing or
+ * older than the sources and brings up the project's MariaDB. SOAK_DEVICES and SOAK_EVENTS make
+ * it smaller for a quick look.
  */
 import { execFile, spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
