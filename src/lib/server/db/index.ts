@@ -16,6 +16,7 @@ export type Db = MySql2Database<typeof schema>;
 
 let pool: GatedPool | undefined;
 let instance: Db | undefined;
+let closingOnShutdown = false;
 
 /** The connection URL; read from the process environment so scripts and the app share it. */
 export function databaseUrl(): string {
@@ -46,6 +47,12 @@ function gatedPool(): GatedPool {
 			...CONNECTION_OPTIONS
 		});
 		pool = new GatedPool(inner, limits);
+		if (!closingOnShutdown) {
+			closingOnShutdown = true;
+			// adapter-node emits this once it stopped taking requests (SIGTERM, SIGINT): open
+			// connections would otherwise keep `node build` alive after it was asked to stop.
+			process.once('sveltekit:shutdown', () => void closeDb());
+		}
 	}
 	return pool;
 }
@@ -143,7 +150,12 @@ async function probeOnce(timeoutMs: number): Promise<boolean> {
 		await Promise.race([
 			work,
 			new Promise((_, reject) => {
-				timer = setTimeout(() => reject(new Error('no answer in time')), timeoutMs);
+				// Given up only after one more turn for I/O: on a busy event loop the timer can come
+				// due in the same turn as the answer, and timers run first.
+				timer = setTimeout(
+					() => setImmediate(() => reject(new Error('no answer in time'))),
+					timeoutMs
+				);
 			})
 		]);
 		return true;

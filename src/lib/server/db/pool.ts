@@ -159,9 +159,12 @@ export class GatedPool {
 		return { size: this.limits.size, inUse: this.#inUse, waiting: this.#waiters.length };
 	}
 
-	/** A sensible Retry-After: spread over 1..ceil(timeout) seconds so retries do not all land at once. */
+	/**
+	 * A sensible Retry-After, in whole seconds: spread at random over 1..max(3, timeout in s), so
+	 * the phones refused together do not all come back in the same second and be refused again.
+	 */
 	retryAfterS(): number {
-		const span = Math.max(1, Math.ceil(this.limits.acquireTimeoutMs / 1000));
+		const span = Math.max(3, Math.ceil(this.limits.acquireTimeoutMs / 1000));
 		return 1 + Math.floor(Math.random() * span);
 	}
 

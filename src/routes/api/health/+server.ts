@@ -4,7 +4,7 @@ import pkg from '../../../../package.json';
 import type { RequestHandler } from './$types';
 
 /** Longest the database may take to answer before it counts as down. */
-const DB_TIMEOUT_MS = 2000;
+const DB_TIMEOUT_MS = 3000;
 
 /**
  * Is the app up, and can it reach its database? Public, for load balancers and monitoring. The
