@@ -670,8 +670,11 @@ cmd_soak() {
 	# The soak must test the code as it is: build when there is no build or the sources are newer.
 	if [[ ! -f build/index.js ]] ||
 		[[ -n "$(find src static svelte.config.js vite.config.ts package-lock.json -newer build/index.js -print -quit)" ]]; then
-		say "building the app"
-		vite build
+		say "building the app (output in .data/soak-build.log)"
+		vite build >"$DATA_DIR/soak-build.log" 2>&1 || {
+			tail -n 30 "$DATA_DIR/soak-build.log" >&2
+			die "the build failed"
+		}
 	fi
 	db_up no
 	local rc=0

@@ -334,12 +334,14 @@ async function soak(): Promise<boolean> {
 	const unfinished = devices.filter((d) => d.outbox.length || d.photos.length);
 
 	console.log('\nFigures');
-	const lat = [...run.latencies].sort((a, b) => a - b);
 	say(
 		`${fmt(Math.round((run.delivered / ms) * 1000))} events/s (${fmt(run.delivered)} events delivered in ${secs(ms)}, photos included)`
 	);
+	const lat = run.latencies.map((l) => l.ms).sort((a, b) => a - b);
+	const slowest = run.latencies.find((l) => l.ms === lat.at(-1));
 	say(
-		`sync batch latency (${fmt(lat.length)} answered 200): p50 ${percentile(lat, 50)}, p95 ${percentile(lat, 95)}, max ${percentile(lat, 100)}`
+		`sync batch latency (${fmt(lat.length)} answered 200): p50 ${percentile(lat, 50)}, p95 ${percentile(lat, 95)}, max ${percentile(lat, 100)}` +
+			(slowest ? ` (sent at ${secs(slowest.at - started)})` : '')
 	);
 	const retries = [...run.retries].sort((a, b) => b[1] - a[1]).map(([c, n]) => `${c} ${n}`);
 	say(`retries by cause: ${retries.join(', ') || 'none'}`);

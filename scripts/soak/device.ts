@@ -53,8 +53,8 @@ export interface Run {
 	origin: string;
 	/** Epoch ms after which phones stop. */
 	deadline: number;
-	/** Sync requests answered 200: latency in ms. */
-	latencies: number[];
+	/** Sync requests answered 200: when sent (epoch ms) and latency in ms. */
+	latencies: { at: number; ms: number }[];
 	/** Failed passes by cause ("aborted", "network", "http 503", …) and batch splits. */
 	retries: Map<string, number>;
 	answers: { accepted: number; duplicate: number; rejected: number };
@@ -180,7 +180,7 @@ export class Device {
 		if (typeof res === 'string') return { ok: false, cause: res };
 		if (res.status === 401) return this.#signedOut();
 		if (res.status === 200) {
-			this.run.latencies.push(Date.now() - started);
+			this.run.latencies.push({ at: started, ms: Date.now() - started });
 			const { results } = JSON.parse(res.body.toString('utf8')) as {
 				results: { id: string; status: string; error?: string }[];
 			};
