@@ -10,6 +10,8 @@
 #   bash scripts/nestmark.sh db:seed    seed the demo scenario into the dev database
 #   bash scripts/nestmark.sh db:reset   drop and recreate the dev database, migrate and seed
 #   bash scripts/nestmark.sh state:rebuild [--fix]  recompute fixture states, report differences
+#   bash scripts/nestmark.sh db:restart shut MariaDB down and start it again (left running)
+#   bash scripts/nestmark.sh soak       50 phones against the built app, with faults; prints figures
 #
 # Everything it starts it stops again on exit (Ctrl-C included), by PID; a MariaDB that was
 # already running is reused and left running.
@@ -629,18 +631,57 @@ cmd_db_up() {
 	say "stop it with: npm run db:down"
 }
 
+# Shuts the project's MariaDB down cleanly (through its defaults file) and waits until it is gone.
+db_shutdown() {
+	local pid=""
+	[[ -f "$DB_PIDFILE" ]] && pid="$(cat "$DB_PIDFILE")"
+	say "stopping MariaDB${pid:+ (pid $pid)}"
+	db_admin shutdown
+	if [[ -n "$pid" ]]; then wait_gone "$pid" 60 || die "MariaDB (pid $pid) is still running after 60s"; fi
+}
+
 cmd_db_down() {
 	write_db_config
 	if ! db_alive; then
 		say "MariaDB is not running"
 		return 0
 	fi
-	local pid=""
-	[[ -f "$DB_PIDFILE" ]] && pid="$(cat "$DB_PIDFILE")"
-	say "stopping MariaDB${pid:+ (pid $pid)}"
-	db_admin shutdown
-	if [[ -n "$pid" ]]; then wait_gone "$pid" 60 || die "MariaDB (pid $pid) is still running after 60s"; fi
+	db_shutdown
 	say "MariaDB stopped; data kept in $DB_DATADIR"
+}
+
+# The soak's database fault, and a quick way to apply a changed my.cnf: stop, start, leave running.
+cmd_db_restart() {
+	write_db_config
+	exec 8>"$DATA_DIR/db.lock"
+	flock -w 120 8 || die "timed out waiting for another nestmark command to bring the database up"
+	if db_alive; then db_shutdown; fi
+	db_start
+	DB_STARTED_PID="" # left running on purpose, like db:up
+	flock -u 8
+	exec 8>&-
+}
+
+# Soak test (scripts/soak.ts): its own scratch database, S3 fake and app (built first if stale).
+cmd_soak() {
+	exec 7>"$DATA_DIR/soak.lock"
+	flock -n 7 || die "another soak from this folder is already running"
+	install_traps
+	# The soak must test the code as it is: build when there is no build or the sources are newer.
+	if [[ ! -f build/index.js ]] ||
+		[[ -n "$(find src static svelte.config.js vite.config.ts package-lock.json -newer build/index.js -print -quit)" ]]; then
+		say "building the app (output in .data/soak-build.log)"
+		vite build >"$DATA_DIR/soak-build.log" 2>&1 || {
+			tail -n 30 "$DATA_DIR/soak-build.log" >&2
+			die "the build failed"
+		}
+	fi
+	db_up no
+	local rc=0
+	tsx scripts/soak.ts || rc=$?
+	# The soak restarts MariaDB once: if this command started it, the server to stop is the new one.
+	if [[ -n "$DB_STARTED_PID" && -s "$DB_PIDFILE" ]]; then DB_STARTED_PID="$(cat "$DB_PIDFILE")"; fi
+	return "$rc"
 }
 
 # The db:* commands below leave the server as they found it: stopped again if they started it.
@@ -678,7 +719,7 @@ cmd_db_reset() {
 }
 
 usage() {
-	sed -n '2,13p' "${BASH_SOURCE[0]}" | sed 's/^# \{0,1\}//'
+	sed -n '2,15p' "${BASH_SOURCE[0]}" | sed 's/^# \{0,1\}//'
 }
 
 main() {
@@ -692,7 +733,7 @@ main() {
 		setup_env test
 		cmd_test
 		;;
-	db:up | db:down | db:migrate | db:seed | db:reset)
+	db:up | db:down | db:restart | db:migrate | db:seed | db:reset | soak)
 		setup_env dev
 		"cmd_${cmd//:/_}"
 		;;

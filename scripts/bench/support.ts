@@ -63,9 +63,9 @@ export async function recreateScratchDb(database: string): Promise<string> {
 	return url;
 }
 
-/** Drops the scratch database, unless BENCH_KEEP_DB=1 asks to keep it for a look. */
-export function dropScratchDb(database: string): void {
-	if (process.env.BENCH_KEEP_DB !== '1') adminSql(`DROP DATABASE IF EXISTS \`${database}\``);
+/** Drops the scratch database, unless `keep` (by default BENCH_KEEP_DB=1) asks to keep it for a look. */
+export function dropScratchDb(database: string, keep = process.env.BENCH_KEEP_DB === '1'): void {
+	if (!keep) adminSql(`DROP DATABASE IF EXISTS \`${database}\``);
 }
 
 /** What seedScratch creates. */
@@ -78,9 +78,11 @@ export interface ScratchSeed {
 	area: string;
 	location: string;
 	fixtures: { count: number; type: FixtureType; name: (i: number) => string };
+	/** More accounts, each with its own role and password. */
+	moreAccounts?: { email: string; name: string; role: Role; password: string }[];
 }
 
-/** Seeds one account, one place and the fixtures through the app's services; returns the codes. */
+/** Seeds the accounts, one place and the fixtures through the app's services; returns the codes. */
 export async function seedScratch(url: string, seed: ScratchSeed): Promise<string[]> {
 	// The services read DATABASE_URL on first use; point them at the scratch database.
 	process.env.DATABASE_URL = url;
@@ -96,6 +98,9 @@ export async function seedScratch(url: string, seed: ScratchSeed): Promise<strin
 			roles: [seed.role],
 			password: seed.password
 		});
+		for (const more of seed.moreAccounts ?? []) {
+			await users.createUser({ ...more, roles: [more.role] });
+		}
 		// The seeding actor: an admin in name only, for the services' role checks.
 		const actor = { id: created.id, email: seed.email, name: 'Bench', roles: ['admin' as const] };
 		const siteId = await places.ensureSite(actor, 'Larchmere Precision Optics');

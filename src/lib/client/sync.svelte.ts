@@ -10,6 +10,7 @@ import {
 	nextSyncDelayMs,
 	parseRetryAfter,
 	refusalAction,
+	SYNC_BATCH_SIZE,
 	SYNC_IDLE_POLL_MS
 } from '$lib/domain/sync-schedule';
 import { getMeta, setMeta } from './db';
@@ -18,8 +19,6 @@ import * as outbox from './outbox';
 import * as photos from './photos';
 import { refreshSnapshot } from './register-snapshot';
 
-/** Events per request (the API takes up to 500; smaller batches fail and retry cheaply). */
-export const SYNC_BATCH_SIZE = 100;
 /** New entries wait this long before sending, so a mistaken tap can be undone. */
 export const UNDO_WINDOW_MS = 5_000;
 

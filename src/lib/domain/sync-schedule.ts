@@ -15,6 +15,8 @@ export interface BackoffOptions {
 	random?: () => number;
 }
 
+/** Events per sync request (the API takes up to 500; smaller batches fail and retry cheaply). */
+export const SYNC_BATCH_SIZE = 100;
 export const SYNC_BASE_DELAY_MS = 5_000;
 export const SYNC_MAX_DELAY_MS = 5 * 60_000;
 /** Check for register changes this often when nothing is waiting. */
