@@ -1,4 +1,5 @@
 import type { RequestEvent } from '@sveltejs/kit';
+import { CallbackRouteError } from '@auth/core/errors';
 import { describe, expect, it, vi } from 'vitest';
 import { DatabaseBusyError } from './db/pool';
 import { overloadError, overloadHandle, unavailable } from './overload';
@@ -104,5 +105,12 @@ describe('unavailable', () => {
 		expect(unavailable(wrapped({ code: 'ER_DUP_ENTRY' }))).toBeNull();
 		expect(unavailable(new Error('other'))).toBeNull();
 		expect(unavailable(undefined)).toBeNull();
+	});
+
+	it('finds the refusal inside an Auth.js error (a password sign-in while the pool is full)', () => {
+		// @auth/core's AuthError keeps what a callback threw as `cause: { err }`.
+		const busy = new DatabaseBusyError('acquire-timeout', 3);
+		expect(unavailable(new CallbackRouteError(busy))?.retryAfterS).toBe(3);
+		expect(unavailable(new CallbackRouteError(new Error('other')))).toBeNull();
 	});
 });

@@ -36,9 +36,21 @@ export interface Unavailable {
 	message: string;
 }
 
-/** The overload hidden in `err` (Drizzle wraps driver errors in `cause`), or null. */
+/**
+ * The next error down the chain: Drizzle wraps driver errors in `cause`; Auth.js wraps what its
+ * callbacks threw as `cause: { err }` (a sign-in while the pool is full).
+ */
+function inner(e: unknown): unknown {
+	const cause = (e as { cause?: unknown }).cause;
+	if (cause && typeof cause === 'object' && !(cause instanceof Error) && 'err' in cause) {
+		return (cause as { err: unknown }).err;
+	}
+	return cause;
+}
+
+/** The overload hidden in `err` (wrapped by Drizzle or Auth.js), or null. */
 export function unavailable(err: unknown): Unavailable | null {
-	for (let e: unknown = err, depth = 0; e && depth < 8; e = (e as { cause?: unknown }).cause) {
+	for (let e: unknown = err, depth = 0; e && depth < 8; e = inner(e)) {
 		depth++;
 		if (e instanceof DatabaseBusyError) {
 			return {

@@ -3,6 +3,7 @@ import { fail, isRedirect, redirect } from '@sveltejs/kit';
 import { z } from 'zod';
 import { linkRequestSchema, passwordSignInSchema } from '$lib/schemas/users';
 import { clientAddress, signIn } from '$lib/server/auth';
+import { unavailable } from '$lib/server/overload';
 import { countLinkRequest } from '$lib/server/throttle';
 import { withForm } from './form-request';
 import { noticeFor, refusalMessage, safeNext } from './messages';
@@ -42,6 +43,9 @@ export const actions: Actions = {
 				const status = /^(locked|wait)-/.test(e.code ?? '') ? 429 : 400;
 				return fail(status, { form: 'password' as const, email, message: refusalMessage(e.code) });
 			}
+			// The database was too busy to check the password: say so on the form, keep what was typed.
+			const busy = unavailable(e);
+			if (busy) return fail(503, { form: 'password' as const, email, message: busy.message });
 			throw e;
 		}
 		redirect(303, next);
