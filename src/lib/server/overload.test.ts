@@ -108,9 +108,15 @@ describe('unavailable', () => {
 	});
 
 	it('finds the refusal inside an Auth.js error (a password sign-in while the pool is full)', () => {
-		// @auth/core's AuthError keeps what a callback threw as `cause: { err }`.
-		const busy = new DatabaseBusyError('acquire-timeout', 3);
-		expect(unavailable(new CallbackRouteError(busy))?.retryAfterS).toBe(3);
-		expect(unavailable(new CallbackRouteError(new Error('other')))).toBeNull();
+		// @auth/core's callback route wraps what `authorize` threw exactly like this
+		// (`new CallbackRouteError(e, { provider })`, lib/actions/callback/index.js),
+		// keeping it as `cause: { err }`. Its typings only admit a string message,
+		// hence the cast.
+		const wrap = (e: Error) =>
+			new (CallbackRouteError as unknown as new (e: Error, o: object) => Error)(e, {
+				provider: 'credentials'
+			});
+		expect(unavailable(wrap(new DatabaseBusyError('timeout', 3)))?.retryAfterS).toBe(3);
+		expect(unavailable(wrap(new Error('other')))).toBeNull();
 	});
 });
