@@ -464,6 +464,9 @@ export function canonicalJson(value: unknown): string {
 		.join(',')}}`;
 }
 
+/** Fixture fields the derived state or the effective policy depend on. */
+const FOLD_INPUTS = ['commissionedOn', 'type', 'repeatabilitySpec_um', 'ratedLifeCycles'] as const;
+
 /**
  * Changes a fixture (supervisor or admin). Moving it to another location also appends a `move`
  * event attributed to the actor, in the same transaction. Returns null when there is no such code.
@@ -517,11 +520,14 @@ export async function update(
 		return { code: row.code, moved, fixtureId: row.id };
 	});
 	if (!result) return null;
-	if (result.moved) {
-		// The move is part of the history, so fold it into the derived state like any event.
-		// Imported lazily: the health module imports this one.
-		const { rebuildStates } = await import('./health');
+	if (result.moved || FOLD_INPUTS.some((k) => patch[k] !== undefined)) {
+		// The derived state is a fold of the history from the commissioning date under the
+		// fixture's policy: a move, a new commissioning date or a change to what picks the
+		// policy refolds it and re-evaluates its flags, so the stored state always equals a
+		// rebuild. Imported lazily: the health module imports this one.
+		const { rebuildStates, reevaluateFlags } = await import('./health');
 		await rebuildStates({ fix: true, ids: [result.fixtureId] });
+		await reevaluateFlags([result.fixtureId]);
 	}
 	return { code: result.code, moved: result.moved };
 }

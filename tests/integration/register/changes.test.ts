@@ -1,11 +1,12 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createHash } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { generateFixtureCode, isValidFixtureCode, seededRandom } from '$lib/domain/fixture-code';
 import { fixtureCreateSchema } from '$lib/schemas/fixture-form';
 import * as fixtures from '$lib/server/fixtures';
 import { ForbiddenError } from '$lib/server/guard';
 import { rebuildStates } from '$lib/server/health';
+import { ingestBatch } from '$lib/server/ingest';
 import { closeDb, db, makeFixture, makeLocation, makeUser, resetDb, schema } from '../helpers/db';
 
 const input = (locationId: number, extra: Record<string, unknown> = {}) =>
@@ -134,6 +135,32 @@ describe('update', () => {
 		const report = await rebuildStates({ ids: [f.id] });
 		expect(report.checked).toBe(1);
 		expect(report.differing).toEqual([]);
+	});
+
+	it('refolds the state when the commissioning date changes after events were logged', async () => {
+		const sup = await makeUser({ roles: ['supervisor'] });
+		const tech = await makeUser({ roles: ['technician'] });
+		const f = await makeFixture({ commissionedOn: '2026-01-05' });
+		const results = await ingestBatch(tech, 'phone-c', [
+			{
+				id: randomUUID(),
+				fixtureCode: f.code,
+				kind: 'reseat',
+				occurredAt: new Date(Date.now() - 3_600_000).toISOString(),
+				payload: {}
+			}
+		]);
+		expect(results.map((r) => r.status)).toEqual(['accepted']);
+		await fixtures.update(sup, f.code, { commissionedOn: '2026-02-10' });
+		const [row] = await db
+			.select()
+			.from(schema.fixtureState)
+			.where(eq(schema.fixtureState.fixtureId, f.id));
+		expect(row.data).toMatchObject({ since: '2026-02-10T00:00:00.000Z' });
+		expect((await rebuildStates({ ids: [f.id] })).differing).toEqual([]);
+		// Cleared: the state counts from the first logged event again.
+		await fixtures.update(sup, f.code, { commissionedOn: null });
+		expect((await rebuildStates({ ids: [f.id] })).differing).toEqual([]);
 	});
 
 	it('writes nothing when the new location does not exist', async () => {
