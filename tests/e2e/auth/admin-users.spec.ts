@@ -206,11 +206,20 @@ test('repeated wrong passwords lock the account for a while', async ({ page }) =
 	const context = await page.context().browser()!.newContext();
 	const guesser = await context.newPage();
 	await guesser.goto('/signin');
+	// Each guess waits for its own answer: the alert of the one before says the same words, and
+	// a guess typed while the last one is still answered is cleared by that answer.
+	const guess = async (password: string) => {
+		const answered = guesser.waitForResponse(
+			(r) => r.url().endsWith('/signin?/password') && r.request().method() === 'POST'
+		);
+		await submitPassword(guesser, email, password);
+		expect((await answered).ok()).toBe(true);
+	};
 	for (let i = 1; i <= 4; i++) {
-		await submitPassword(guesser, email, `guess-number-${i}`);
+		await guess(`guess-number-${i}`);
 		await expect(guesser.getByRole('alert')).toHaveText('⚠ E-mail or password is wrong.');
 	}
-	await submitPassword(guesser, email, 'guess-number-5');
+	await guess('guess-number-5');
 	await expect(guesser.getByRole('alert')).toContainText(
 		'Too many failed attempts. Wait 15 minutes'
 	);
