@@ -1,4 +1,4 @@
-import Papa from 'papaparse';
+import Papa, { type ParseError } from 'papaparse';
 import { z } from 'zod';
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
 import { fixtureFieldsSchema } from './fixture-form';
@@ -130,90 +130,77 @@ function unescapeFormula(cell: string): string {
 	return /^'[=+\-@\t\r]/.test(cell) ? cell.slice(1) : cell;
 }
 
-/** Parses and validates an import file; every row gets its own list of errors. */
-export function parseFixtureCsv(text: string): ParsedCsv {
-	const fileErrors: string[] = [];
-	if (new TextEncoder().encode(text).length > MAX_IMPORT_BYTES) {
-		return {
-			fileErrors: [
-				`The file is larger than ${MAX_IMPORT_BYTES / 1000} KB; split it into smaller files.`
-			],
-			rows: []
-		};
-	}
-	const body = text.replace(/^\uFEFF/, '');
-	if (body.trim() === '') return { fileErrors: ['The file is empty.'], rows: [] };
+/** The whole file refused with one message. */
+const refused = (message: string): ParsedCsv => ({ fileErrors: [message], rows: [] });
 
-	// The header line is checked on its own first: Papa would quietly rename a repeated column.
+/**
+ * Problems with the header line. It is checked on its own, before the rows: Papa would quietly
+ * rename a repeated column.
+ */
+function headerErrors(body: string): string[] {
+	const errors: string[] = [];
 	const headers = (Papa.parse<string[]>(body, { preview: 1 }).data[0] ?? []).map(normaliseHeader);
 	const unknown = headers.filter(
 		(h) => h !== '' && !(CSV_COLUMNS as readonly string[]).includes(h)
 	);
 	if (unknown.length) {
-		fileErrors.push(
+		errors.push(
 			`Unknown column${unknown.length > 1 ? 's' : ''}: ${unknown.join(', ')}. The columns are: ${CSV_COLUMNS.join(', ')}.`
 		);
 	}
 	const repeated = headers.filter((h, i) => h !== '' && headers.indexOf(h) !== i);
-	if (repeated.length) fileErrors.push(`Column given twice: ${[...new Set(repeated)].join(', ')}.`);
+	if (repeated.length) errors.push(`Column given twice: ${[...new Set(repeated)].join(', ')}.`);
 	const missing = REQUIRED_CSV_COLUMNS.filter((c) => !headers.includes(c));
 	if (missing.length) {
-		fileErrors.push(
+		errors.push(
 			`Missing column${missing.length > 1 ? 's' : ''}: ${missing.join(', ')}. The first line must name the columns.`
 		);
 	}
-	if (fileErrors.length) return { fileErrors, rows: [] };
+	return errors;
+}
 
-	const parsed = Papa.parse<Record<string, string>>(body, {
-		header: true,
-		skipEmptyLines: 'greedy',
-		transformHeader: normaliseHeader
-	});
-	if (parsed.data.length === 0) {
-		fileErrors.push('The file has a header line but no fixtures.');
+/** Problems with the number of rows: none, or more than one import may hold. */
+function rowCountErrors(rows: number): string[] {
+	if (rows === 0) return ['The file has a header line but no fixtures.'];
+	if (rows > MAX_IMPORT_ROWS) {
+		return [`The file has ${rows} rows; import at most ${MAX_IMPORT_ROWS} at a time.`];
 	}
-	if (parsed.data.length > MAX_IMPORT_ROWS) {
-		fileErrors.push(
-			`The file has ${parsed.data.length} rows; import at most ${MAX_IMPORT_ROWS} at a time.`
-		);
-	}
-	if (fileErrors.length) return { fileErrors, rows: [] };
+	return [];
+}
 
-	const shapeErrors = new Map<number, string[]>();
-	for (const e of parsed.errors) {
+/** Papa's complaints about a row's cells or quoting, in words, by 0-based data row. */
+function shapeErrorsByRow(errors: ParseError[]): Map<number, string[]> {
+	const byRow = new Map<number, string[]>();
+	for (const e of errors) {
 		if (e.code === 'UndetectableDelimiter' || e.row === undefined) continue;
 		const msg =
 			e.code === 'TooFewFields' || e.code === 'TooManyFields'
 				? `This row has a different number of cells from the header (${e.message.replace(/^Too (few|many) fields: /, '')}).`
 				: `The row's quoting is broken: ${e.message}.`;
-		shapeErrors.set(e.row, [...(shapeErrors.get(e.row) ?? []), msg]);
+		byRow.set(e.row, [...(byRow.get(e.row) ?? []), msg]);
 	}
+	return byRow;
+}
 
-	const rows: ParsedCsvRow[] = parsed.data.map((record, i) => {
-		const cells = Object.fromEntries(
-			CSV_COLUMNS.map((c) => [c, unescapeFormula(String(record[c] ?? '').trim())])
-		) as Record<CsvColumn, string>;
-		const errors: CsvRowError[] = (shapeErrors.get(i) ?? []).map((message) => ({
-			column: null,
-			message
-		}));
-		const input = Object.fromEntries(CSV_COLUMNS.map((c) => [FIELD_OF[c], cells[c]]));
-		const result = csvRowSchema.safeParse(input);
-		if (!result.success) {
-			for (const issue of result.error.issues) {
-				const field = issue.path.length ? String(issue.path[0]) : '';
-				errors.push({ column: COLUMN_OF[field] ?? null, message: issue.message });
-			}
+/** One data row (0-based `i`) validated against the row schema, with its shape errors first. */
+function parseRow(record: Record<string, string>, i: number, shapeErrors: string[]): ParsedCsvRow {
+	const cells = Object.fromEntries(
+		CSV_COLUMNS.map((c) => [c, unescapeFormula(String(record[c] ?? '').trim())])
+	) as Record<CsvColumn, string>;
+	const errors: CsvRowError[] = shapeErrors.map((message) => ({ column: null, message }));
+	const input = Object.fromEntries(CSV_COLUMNS.map((c) => [FIELD_OF[c], cells[c]]));
+	const result = csvRowSchema.safeParse(input);
+	if (!result.success) {
+		for (const issue of result.error.issues) {
+			const field = issue.path.length ? String(issue.path[0]) : '';
+			errors.push({ column: COLUMN_OF[field] ?? null, message: issue.message });
 		}
-		return {
-			row: i + 2,
-			cells,
-			value: result.success ? result.data : null,
-			errors
-		};
-	});
+	}
+	return { row: i + 2, cells, value: result.success ? result.data : null, errors };
+}
 
-	// The same code twice in one file: every occurrence after the first is an error.
+/** The same code twice in one file: every occurrence after the first is an error. */
+function markRepeatedCodes(rows: ParsedCsvRow[]): void {
 	const firstRowOfCode = new Map<string, number>();
 	for (const r of rows) {
 		const code = r.value?.code;
@@ -223,7 +210,32 @@ export function parseFixtureCsv(text: string): ParsedCsv {
 		else
 			r.errors.push({ column: 'code', message: `Code ${code} is already used in row ${first}.` });
 	}
-	return { fileErrors, rows };
+}
+
+/** Parses and validates an import file; every row gets its own list of errors. */
+export function parseFixtureCsv(text: string): ParsedCsv {
+	if (new TextEncoder().encode(text).length > MAX_IMPORT_BYTES) {
+		return refused(
+			`The file is larger than ${MAX_IMPORT_BYTES / 1000} KB; split it into smaller files.`
+		);
+	}
+	const body = text.replace(/^\uFEFF/, '');
+	if (body.trim() === '') return refused('The file is empty.');
+	const headerProblems = headerErrors(body);
+	if (headerProblems.length) return { fileErrors: headerProblems, rows: [] };
+
+	const parsed = Papa.parse<Record<string, string>>(body, {
+		header: true,
+		skipEmptyLines: 'greedy',
+		transformHeader: normaliseHeader
+	});
+	const countProblems = rowCountErrors(parsed.data.length);
+	if (countProblems.length) return { fileErrors: countProblems, rows: [] };
+
+	const shapeErrors = shapeErrorsByRow(parsed.errors);
+	const rows = parsed.data.map((record, i) => parseRow(record, i, shapeErrors.get(i) ?? []));
+	markRepeatedCodes(rows);
+	return { fileErrors: [], rows };
 }
 
 /** One fixture as the export writes it. */
