@@ -1,4 +1,4 @@
-/** The cautions Nestmark shows where the work can hurt someone (BRIEF.md, "Cautions"). */
+/** The cautions Nestmark shows where the work can hurt someone. */
 export const CAUTION_KINDS = ['heavy', 'pinch', 'solvent', 'air'] as const;
 export type CautionKind = (typeof CAUTION_KINDS)[number];
 

@@ -2,11 +2,11 @@ import { describe, expect, it } from 'vitest';
 import { breakInCurve } from './break-in-curves';
 
 describe('breakInCurve', () => {
-	// REFERENCES.md §C, ISO 230-2 style [C]: readings 2.0, 2.4, 1.8, 2.2, 2.1 µm → s = 0.223607
+	// ISO 230-2:2014 style, computed: readings 2.0, 2.4, 1.8, 2.2, 2.1 µm → s = 0.223607
 	// (n − 1), R = 4s = 0.894427.
 	const worked = [2.0, 2.4, 1.8, 2.2, 2.1].map((dx) => ({ dx }));
 
-	it('gives R = 4s of the worked readings for a window of all five [C]', () => {
+	it('gives R = 4s of the worked readings for a window of all five, computed', () => {
 		const c = breakInCurve(worked, 5, 5, 1);
 		expect(c.points).toHaveLength(1);
 		expect(c.points[0].cycle).toBe(5);
@@ -18,7 +18,7 @@ describe('breakInCurve', () => {
 
 	it('places readings on the run’s cycles as the fold does (spread evenly, last at the end)', () => {
 		// Five readings over ten cycles are taken at cycles 2, 4, 6, 8, 10; windows of two end at
-		// the second reading onward. R of [a, b] is 4·|a − b|/√2 [C].
+		// the second reading onward. R of [a, b] is 4·|a − b|/√2, computed.
 		const c = breakInCurve(worked, 10, 2, 1);
 		expect(c.points.map((p) => p.cycle)).toEqual([4, 6, 8, 10]);
 		expect(c.points[0].R).toBeCloseTo((4 * 0.4) / Math.SQRT2, 12);

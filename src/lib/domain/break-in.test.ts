@@ -2,12 +2,12 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { breakInStatus } from './break-in';
 
-// Nestmark's settling rule (no standard defines settling — REFERENCES §E [P]): sliding windows of
+// Nestmark's settling rule (no standard defines settling — common practice): sliding windows of
 // w cycles; settled at the first window of the tail in which every window has s ≤ threshold.
 describe('breakInStatus', () => {
 	const run = [0, 1, 0, 1, 0.5, 0.5, 0.5, 0.5, 0.5];
 
-	it('hand-worked run: scatter stops after cycle 5, so the first compliant window ends at cycle 7 [C]', () => {
+	it('hand-worked run: scatter stops after cycle 5, so the first compliant window ends at cycle 7, computed', () => {
 		const r = breakInStatus(run, { window: 3, threshold_um: 0.1 });
 		expect(r.windows.map((w) => [w.startCycle, w.endCycle])).toEqual([
 			[1, 3],

@@ -11,7 +11,7 @@ import {
 import { threeVeeContacts, trihedralVeeFlatContacts } from './coupling-geometry';
 import { type Vec3, add, cross, dot, norm, scale, sub } from './vec';
 
-// Worked cases: REFERENCES §B [C] — balls at 90°, 210°, 330° on r = 50 mm, normals 45° from
+// Worked cases, computed — balls at 90°, 210°, 330° on r = 50 mm, normals 45° from
 // vertical; line-of-constraint wrench w = [n ; p × n] (Blanding 1999; Hale 1999 §2.6; Hopkins &
 // Culpepper, Precision Engineering 34 (2010) 259–270).
 const maxwell = threeVeeContacts({ ballCircleRadius_mm: 50, contactAngle_deg: 45 });
@@ -41,7 +41,7 @@ function residual(contacts: Contact[], t: Twist): number {
 	);
 }
 
-describe('analyzeConstraints — worked cases (REFERENCES §B)', () => {
+describe('analyzeConstraints — worked cases (Blanding 1999; Hale 1999 §2.6)', () => {
 	it('three balls in three radial vees: 6 contacts, rank 6, exactly constrained', () => {
 		const r = analyzeConstraints(maxwell);
 		expect(r).toMatchObject({
@@ -106,7 +106,7 @@ describe('analyzeConstraints — worked cases (REFERENCES §B)', () => {
 });
 
 describe('analyzeConstraints — further cases from the literature', () => {
-	it('tangential grooves let the coupling spin about its centre (Slocum 1992 [M]; common practice)', () => {
+	it('tangential grooves let the coupling spin about its centre (Slocum 1992, from memory; common practice)', () => {
 		const c = threeVeeContacts({
 			ballCircleRadius_mm: 50,
 			contactAngle_deg: 45,

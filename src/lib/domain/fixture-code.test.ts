@@ -20,14 +20,15 @@ const body = fc
 
 describe('Luhn mod N', () => {
 	it('reproduces the decimal Luhn check digit', () => {
-		// ISO/IEC 7812-1 Annex B (Luhn formula for payment-card numbers) [M]; the textbook
-		// example 7992739871 → check digit 3, as in Luhn, US patent 2,950,048 (1960) [M].
+		// ISO/IEC 7812-1 Annex B (Luhn formula for payment-card numbers), from memory; the textbook
+		// example 7992739871 → check digit 3, as in Luhn, US patent 2,950,048 (1960), from memory.
 		expect(luhnModNCheck('7992739871', '0123456789')).toBe('3');
 	});
 
 	it('reproduces the worked example for the alphabet a–f', () => {
 		// Luhn mod N worked example (alphabet "abcdef", input "abcdef" → "e") from the
-		// encyclopaedia article on the algorithm [M]; hand check: 5+4+1+2+2+0 = 14, (6 − 14 mod 6) = 4 → e.
+		// encyclopaedia article on the algorithm, from memory; hand check: 5+4+1+2+2+0 = 14,
+		// (6 − 14 mod 6) = 4 → e.
 		expect(luhnModNCheck('abcdef', 'abcdef')).toBe('e');
 	});
 

@@ -3,13 +3,13 @@ import { describe, expect, it } from 'vitest';
 import { forecastCrossing, median } from './forecast';
 
 // Anscombe, "Graphs in statistical analysis", The American Statistician 27(1) 1973, data set I:
-// least-squares fit y = 3.00 + 0.500 x [S].
+// least-squares fit y = 3.00 + 0.500 x.
 const anscombeX = [10, 8, 13, 9, 11, 14, 6, 4, 12, 7, 5];
 const anscombeY = [8.04, 6.95, 7.58, 8.81, 8.33, 9.96, 7.24, 4.26, 10.84, 4.82, 5.68];
 const anscombe = anscombeX.map((x, i) => ({ x, y: anscombeY[i] }));
 
 describe('forecastCrossing — OLS', () => {
-	it("Anscombe's data set I: slope 0.500, intercept 3.00 [S]", () => {
+	it("Anscombe's data set I: slope 0.500, intercept 3.00", () => {
 		const f = forecastCrossing(anscombe, 100, { method: 'ols' });
 		expect(f.slope).toBeCloseTo(0.5001, 4);
 		expect(f.intercept).toBeCloseTo(3.0001, 4);
@@ -20,7 +20,7 @@ describe('forecastCrossing — OLS', () => {
 });
 
 describe('forecastCrossing — Theil–Sen (Theil 1950; Sen 1968)', () => {
-	// Hand-worked [C]: pairwise slopes 2, 0.5, 4/3, −1, 1, 3 → median (1 + 4/3)/2 = 7/6.
+	// Hand-worked: pairwise slopes 2, 0.5, 4/3, −1, 1, 3 → median (1 + 4/3)/2 = 7/6.
 	const pts = [
 		{ x: 1, y: 1 },
 		{ x: 2, y: 3 },

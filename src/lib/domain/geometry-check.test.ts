@@ -40,7 +40,8 @@ describe('conditionReading (bands: common practice)', () => {
 });
 
 describe('load sharing', () => {
-	// REFERENCES §A [C]: vee flank N = F / (2 cos θ); each ball of a three-vee carries a third.
+	// Computed from the contact geometry: vee flank N = F / (2 cos θ); each ball of a three-vee
+	// carries a third (common practice for an equilateral layout).
 	it('gives each vee flank (P/3) / (2 cos 45°) in a three-vee coupling', () => {
 		const contacts = threeVeeContacts({
 			ballCircleRadius_mm: 50,
@@ -86,7 +87,7 @@ describe('load sharing', () => {
 });
 
 describe('checkGeometry', () => {
-	it('finds two rotations for a three-vee with one ball removed (REFERENCES §B worked case [C])', () => {
+	it('finds two rotations for a three-vee with one ball removed (screw-theory rank count after Blanding 1999 and Hale 1999 §2.6, computed)', () => {
 		const r = checkGeometry({
 			contacts: threeVeeContacts({
 				ballCircleRadius_mm: 50,
@@ -112,9 +113,10 @@ describe('checkGeometry', () => {
 			'rotation about a vertical axis through (0.0, -100.0, 0.0) mm along (0.000, 0.000, 1.000)'
 		);
 	});
-	it('reports the Hertz figures of REFERENCES §A worked case at 100 N per flank', () => {
+	it('reports the Hertz figures of a Ø12.7 mm ball on a flat at 100 N per flank', () => {
 		// Ø12.7 mm 52100 ball on a steel flat, 100 N: a = 0.16041 mm, p₀ = 1855.6 MPa, δ = 4.052 µm,
-		// k = 37.02 N/µm [C]. A flat-normal contact on each of three balls at 300 N carries 100 N.
+		// k = 37.02 N/µm, computed from Johnson, Contact Mechanics (1985) §3.4. A flat-normal contact
+		// on each of three balls at 300 N carries 100 N.
 		const contacts = [0, 1, 2].map((i) => ({
 			point: [50 * Math.cos(i * 2.1), 50 * Math.sin(i * 2.1), 0] as [number, number, number],
 			normal: [0, 0, 1] as [number, number, number]
@@ -134,7 +136,7 @@ describe('checkGeometry', () => {
 		expect(s.approach_um).toBeCloseTo(4.052, 2);
 		expect(s.stiffness_N_per_um).toBeCloseTo(37.02, 1);
 		expect(s.margin_MPa).toBeCloseTo(4200 - 1855.6, 0);
-		// Block on a flat (REFERENCES §B): three freedoms.
+		// Block on a flat: three freedoms (Blanding 1999; common practice).
 		expect(r.dof).toBe(3);
 	});
 	it('is exact for the full three-vee and the trihedral-vee-flat coupling', () => {

@@ -2,11 +2,12 @@
  * The coupling geometry check: constraint analysis, freedoms in words, ball positions for the
  * diagram and Hertz stress per contact at the preload, from one set of point contacts.
  *
- * Load sharing (REFERENCES §A): the preload is vertical and shared equally by the balls present;
- * the contacts of one ball share its vertical load equally, so a contact whose normal makes θ with
- * the vertical carries N = F_ball / (k cos θ) for k contacts on that ball (a vee flank:
- * F / (2 cos θ); a trihedral face: F / (3 cos θ); a flat: F). Every contact is treated as a ball on
- * a flat (flat-flanked vees, flat socket faces), so hertzBallOnFlat gives its size and pressure.
+ * Load sharing (common practice; statics of the contact geometry): the preload is vertical and
+ * shared equally by the balls present; the contacts of one ball share its vertical load equally, so
+ * a contact whose normal makes θ with the vertical carries N = F_ball / (k cos θ) for k contacts on
+ * that ball (a vee flank: F / (2 cos θ); a trihedral face: F / (3 cos θ); a flat: F). Every contact
+ * is treated as a ball on a flat (flat-flanked vees, flat socket faces), so hertzBallOnFlat gives its
+ * size and pressure (Johnson, Contact Mechanics (1985) §3.4).
  */
 import {
 	type Contact,

@@ -21,7 +21,7 @@ const siliconNitride: Material = { E_GPa: 310, nu: 0.27 };
 const near = (x: number, expected: number, rel: number) =>
 	expect(Math.abs(x / expected - 1)).toBeLessThanOrEqual(rel);
 
-describe('hertzBallOnFlat — worked cases (REFERENCES §A [C], formulas Johnson 1985 §3.4 [M])', () => {
+describe('hertzBallOnFlat — worked cases (computed from Johnson, Contact Mechanics 1985 §3.4, equation numbers from memory)', () => {
 	it('Ø12.7 mm 52100 ball on a steel flat, 100 N', () => {
 		const h = hertzBallOnFlat({ ballDiameter_mm: 12.7, load_N: 100, ball: steel, flat: steel });
 		expect(h.effectiveModulus_GPa).toBeCloseTo(115.385, 3);
@@ -31,9 +31,9 @@ describe('hertzBallOnFlat — worked cases (REFERENCES §A [C], formulas Johnson
 		expect(h.meanPressure_MPa * 1.5).toBeCloseTo(h.p0_MPa, 9);
 		expect(h.approach_um).toBeCloseTo(4.052, 3);
 		expect(h.stiffness_N_per_um).toBeCloseTo(37.02, 2);
-		// k = 2E*a = 1.5 F/δ (Johnson 1985 §3.4 [M]).
+		// k = 2E*a = 1.5 F/δ (Johnson 1985 §3.4, from memory).
 		expect(h.stiffness_N_per_um).toBeCloseTo((1.5 * 100) / h.approach_um, 9);
-		// τ_max 0.3100 p0 at 0.4809 a for ν = 0.3 (REFERENCES §A [C]).
+		// τ_max 0.3100 p0 at 0.4809 a for ν = 0.3 (computed from Johnson 1985 eq. 3.45, from memory).
 		expect(h.maxShear_MPa / h.p0_MPa).toBeCloseTo(0.31, 4);
 		expect(h.maxShearDepth_mm / h.a_mm).toBeCloseTo(0.4809, 4);
 	});
@@ -56,7 +56,7 @@ describe('hertzBallOnFlat — worked cases (REFERENCES §A [C], formulas Johnson
 		expect(h.maxShear_MPa).toBe(h.bodies[0].maxShear_MPa);
 	});
 
-	it("matches Roark's Table 14.1 constants: a = 0.721 (P K_D C_E)^⅓, y = 1.040 (P² C_E²/K_D)^⅓ [S]", () => {
+	it("matches Roark's Table 14.1 constants: a = 0.721 (P K_D C_E)^⅓, y = 1.040 (P² C_E²/K_D)^⅓", () => {
 		const P = 250;
 		const D = 10;
 		const CE = (1 / effectiveModulus(steel, steel)) * 1e6; // 1/MPa: N and mm units
@@ -67,7 +67,7 @@ describe('hertzBallOnFlat — worked cases (REFERENCES §A [C], formulas Johnson
 	});
 });
 
-describe('other circular contacts — Roark Table 14.1 [S]', () => {
+describe('other circular contacts — Roark Table 14.1', () => {
 	const CE = (1 / effectiveModulus(steel, siliconNitride)) * 1e6;
 
 	it('ball on ball: K_D = D₁D₂/(D₁ + D₂)', () => {
@@ -110,7 +110,7 @@ describe('other circular contacts — Roark Table 14.1 [S]', () => {
 	});
 });
 
-describe('Hertz scaling laws (fast-check): a ∝ F^⅓, p0 ∝ F^⅓, δ ∝ F^⅔ (Johnson 1985 §3.4 [M])', () => {
+describe('Hertz scaling laws (fast-check): a ∝ F^⅓, p0 ∝ F^⅓, δ ∝ F^⅔ (Johnson 1985 §3.4, from memory)', () => {
 	it('hold for every load ratio, diameter and material pair', () => {
 		const material = fc.record({
 			E_GPa: fc.double({ min: 50, max: 700, noNaN: true }),
@@ -135,7 +135,7 @@ describe('Hertz scaling laws (fast-check): a ∝ F^⅓, p0 ∝ F^⅓, δ ∝ F^�
 	});
 });
 
-describe('hertzBallInVee — flank load N = F/(2 cos θ), k_v = 2 k_n cos²θ (REFERENCES §A [C])', () => {
+describe('hertzBallInVee — flank load N = F/(2 cos θ), k_v = 2 k_n cos²θ (computed from the flank geometry and Johnson 1985 §3.4)', () => {
 	it('90° vee: θ = 45°, each flank carries F/√2 and k_v = k_n', () => {
 		const v = hertzBallInVee({
 			ballDiameter_mm: 12.7,
@@ -171,7 +171,7 @@ describe('hertzBallInVee — flank load N = F/(2 cos θ), k_v = 2 k_n cos²θ (R
 
 /**
  * Surface approach at (x0, y0) under an elliptical Hertz pressure, by quadrature of Boussinesq's
- * surface kernel u = (1/πE*) ∬ p/r dA (Johnson 1985 §3.2 [M]) in polar coordinates about the
+ * surface kernel u = (1/πE*) ∬ p/r dA (Johnson 1985 §3.2, from memory) in polar coordinates about the
  * point: along each ray the pressure is p0 √(γ(ρ₁ − ρ)(ρ − ρ₀)), integrated in closed form.
  * Independent of the elliptic-integral solution it checks. mm and MPa.
  */
@@ -213,7 +213,7 @@ describe('hertzBallInGroove — elliptical contact', () => {
 		seat: steel
 	};
 
-	it('exact solution satisfies the surface displacement condition u = δ − A x² − B y² (Johnson 1985 §4.2 [M], independent quadrature [C])', () => {
+	it('exact solution satisfies the surface displacement condition u = δ − A x² − B y² (Johnson 1985 §4.2, from memory; checked by independent quadrature)', () => {
 		for (const conformity of [1.04, 1.2, 2]) {
 			const rb = 6.35;
 			const Rg = rb * conformity;
@@ -252,7 +252,7 @@ describe('hertzBallInGroove — elliptical contact', () => {
 		near(g.maxShear_MPa, f.maxShear_MPa, 1e-5);
 	});
 
-	it('Hamrock–Brewe (1983) [M] agrees with the exact solution within 1.5 % for radius ratios 2–30 [C]', () => {
+	it('Hamrock–Brewe (1983, from memory) agrees with the exact solution within 1.5 % for radius ratios 2–30 (computed)', () => {
 		for (const ratio of [2, 5, 10, 20, 30]) {
 			const Rg = (6.35 * ratio) / (ratio - 1); // R_across / R_along = ratio
 			const exact = hertzBallInGroove({ ...base, grooveRadius_mm: Rg }).flank;
@@ -276,7 +276,7 @@ describe('hertzBallInGroove — elliptical contact', () => {
 	});
 });
 
-describe('allowableLoad — F = p0³π³R²/(6E*²) at the ISO 76 limit of 4200 MPa [S]', () => {
+describe('allowableLoad — F = p0³π³R²/(6E*²) at the ISO 76 limit of 4200 MPa', () => {
 	it('ball on flat: the load that gives p0 = 4200 MPa', () => {
 		const { load_N, limit_MPa } = allowableLoad({
 			contact: 'ball-on-flat',
@@ -285,7 +285,7 @@ describe('allowableLoad — F = p0³π³R²/(6E*²) at the ISO 76 limit of 4200 
 			seat: steel
 		});
 		expect(limit_MPa).toBe(4200);
-		expect(load_N).toBeCloseTo(1159.57, 2); // [C] from the formula above
+		expect(load_N).toBeCloseTo(1159.57, 2); // computed from the formula above
 		const h = hertzBallOnFlat({ ballDiameter_mm: 12.7, load_N, ball: steel, flat: steel });
 		expect(h.p0_MPa).toBeCloseTo(4200, 8);
 	});
@@ -308,7 +308,7 @@ describe('allowableLoad — F = p0³π³R²/(6E*²) at the ISO 76 limit of 4200 
 		expect(check.flank.p0_MPa).toBeCloseTo(4200, 8);
 	});
 
-	it('takes another limit, e.g. first yield at p0 ≈ 1.6 Y (Johnson 1985 [M])', () => {
+	it('takes another limit, e.g. first yield at p0 ≈ 1.6 Y (Johnson 1985, from memory)', () => {
 		const Y = 2000;
 		const r = allowableLoad({
 			contact: 'ball-on-flat',

@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { meanAndS, repeatability, type Reading } from './repeatability';
 
 describe('repeatability — ISO 230-2:2014 style, R = 4s with s over n − 1', () => {
-	it('worked case: 2.0, 2.4, 1.8, 2.2, 2.1 µm → mean 2.1, s 0.223607, R 0.894427 (REFERENCES §C [C])', () => {
+	it('worked case: 2.0, 2.4, 1.8, 2.2, 2.1 µm → mean 2.1, s 0.223607, R 0.894427 (ISO 230-2:2014 R = 4s with s over n − 1, computed)', () => {
 		const r = repeatability([2.0, 2.4, 1.8, 2.2, 2.1].map((dx) => ({ dx })));
 		expect(r.n).toBe(5);
 		expect(r.axes.x!.mean).toBeCloseTo(2.1, 12);
@@ -16,13 +16,13 @@ describe('repeatability — ISO 230-2:2014 style, R = 4s with s over n − 1', (
 		expect(r.worst).toEqual({ axis: 'x', R: r.axes.x!.R });
 	});
 
-	it('NIST StRD NumAcc1: 10000001, 10000003, 10000002 → mean 10000002, s 1 (certified values [M])', () => {
+	it('NIST StRD NumAcc1: 10000001, 10000003, 10000002 → mean 10000002, s 1 (certified values, from memory)', () => {
 		const { mean, s } = meanAndS([10000001, 10000003, 10000002]);
 		expect(mean).toBe(10000002);
 		expect(s).toBe(1);
 	});
 
-	it('NIST StRD NumAcc3: 1000000.2 then 500 pairs of 1000000.1, 1000000.3 → mean 1000000.2, s 0.1 (certified [M])', () => {
+	it('NIST StRD NumAcc3: 1000000.2 then 500 pairs of 1000000.1, 1000000.3 → mean 1000000.2, s 0.1 (certified, from memory)', () => {
 		const values = [1000000.2];
 		for (let i = 0; i < 500; i++) values.push(1000000.1, 1000000.3);
 		const { mean, s } = meanAndS(values);

@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { type RunRule, individualsChart, runRuleHits } from './spc';
 
-// REFERENCES §D worked limits [C]; NIST/SEMATECH e-Handbook §6.3.2 for d₂ = 1.128 and D₄ = 3.267 [S].
+// Worked limits computed from the NIST/SEMATECH e-Handbook §6.3.2 formulas, which also give
+// d₂ = 1.128 and D₄ = 3.267.
 const readings = [
 	0.52, 0.47, 0.5, 0.55, 0.49, 0.46, 0.51, 0.48, 0.53, 0.5, 0.54, 0.56, 0.55, 0.58, 0.57, 0.6, 0.62,
 	0.64, 0.66, 0.8
@@ -14,7 +15,7 @@ const byRule = (hits: { rule: RunRule; index: number }[]) => {
 };
 
 describe('individualsChart — limits', () => {
-	it('worked case: x̄ 0.5565, MR̄ 0.0378947, UCL 0.657284, LCL 0.455716, MR UCL 0.123802 (REFERENCES §D [C])', () => {
+	it('worked case: x̄ 0.5565, MR̄ 0.0378947, UCL 0.657284, LCL 0.455716, MR UCL 0.123802 (computed from NIST/SEMATECH §6.3.2)', () => {
 		const c = individualsChart(readings);
 		expect(c.center).toBeCloseTo(0.5565, 10);
 		expect(c.mrBar).toBeCloseTo(0.0378947, 7);
@@ -26,7 +27,7 @@ describe('individualsChart — limits', () => {
 		expect(c.movingRanges[19]).toBeCloseTo(0.14, 12);
 	});
 
-	it("multiplier '2.66': x̄ ± 2.66 MR̄ (NIST/SEMATECH §6.3.2 [S])", () => {
+	it("multiplier '2.66': x̄ ± 2.66 MR̄ (NIST/SEMATECH §6.3.2)", () => {
 		const c = individualsChart(readings, { multiplier: '2.66' });
 		expect(c.ucl).toBeCloseTo(0.5565 + 2.66 * 0.0378947368, 9);
 		expect(c.lcl).toBeCloseTo(0.5565 - 2.66 * 0.0378947368, 9);
@@ -47,7 +48,7 @@ describe('individualsChart — limits', () => {
 	});
 });
 
-describe('individualsChart — run rules on the worked readings (hand-derived from the conventions [C])', () => {
+describe('individualsChart — run rules on the worked readings (hand-derived from the conventions)', () => {
 	// σ̂ = 0.033595: 1σ band 0.5229–0.5901, 2σ 0.4893–0.6237, limits 0.4557–0.6573.
 	const hits = byRule(individualsChart(readings).hits);
 
@@ -70,7 +71,7 @@ describe('individualsChart — run rules on the worked readings (hand-derived fr
 	});
 });
 
-describe('run rules — conventions (REFERENCES §D)', () => {
+describe('run rules — conventions (Western Electric 1956; Nelson 1984; windowing is common practice)', () => {
 	const limits = { center: 0, sigma: 1, ucl: 3, lcl: -3 };
 	const hitsOf = (values: number[], rule: RunRule) =>
 		runRuleHits(values, limits, [rule]).map((h) => h.index);

@@ -21,18 +21,18 @@ describe('Gauss–Legendre nodes', () => {
 	});
 });
 
-describe('circular contact, on-axis stresses (Johnson 1985 eq. 3.45 [M])', () => {
+describe('circular contact, on-axis stresses (Johnson 1985 eq. 3.45, from memory)', () => {
 	it('σ_z = −p0 at the surface and decays as 1/(1 + ζ²)', () => {
 		expect(circularAxisStress(1e-9, 0.3).sigmaZ).toBeCloseTo(-1, 9);
 		expect(circularAxisStress(1, 0.3).sigmaZ).toBeCloseTo(-0.5, 12);
 	});
 
-	it('σ_r at the surface centre is −(1 + 2ν)/2 · p0 (Johnson 1985 eq. 3.45 at z = 0 [M])', () => {
+	it('σ_r at the surface centre is −(1 + 2ν)/2 · p0 (Johnson 1985 eq. 3.45 at z = 0, from memory)', () => {
 		expect(circularAxisStress(1e-9, 0.3).sigmaR).toBeCloseTo(-0.8, 6);
 		expect(circularAxisStress(1e-9, 0.22).sigmaR).toBeCloseTo(-0.72, 6);
 	});
 
-	it('ν = 0.3: τ_max ≈ 0.31 p0 at ≈ 0.48 a (Johnson 1985 §3.4 [M]); 0.3100 p0 at 0.4809 a (REFERENCES §A [C])', () => {
+	it('ν = 0.3: τ_max ≈ 0.31 p0 at ≈ 0.48 a (Johnson 1985 §3.4, from memory); 0.3100 p0 at 0.4809 a (computed)', () => {
 		const s = circularMaxShear(0.3);
 		expect(s.tau).toBeCloseTo(0.31, 2);
 		expect(s.depth).toBeCloseTo(0.48, 2);
@@ -49,7 +49,7 @@ describe('circular contact, on-axis stresses (Johnson 1985 eq. 3.45 [M])', () =>
 });
 
 describe('elliptical contact, on-axis stresses by Boussinesq quadrature', () => {
-	it('reproduces the circular closed form when a = b (two independent methods [C])', () => {
+	it('reproduces the circular closed form when a = b (two independent methods)', () => {
 		for (const nu of [0.14, 0.22, 0.3, 0.45]) {
 			for (const z of [0.05, 0.3, 0.48, 1, 2.5]) {
 				const c = circularAxisStress(z, nu);
@@ -66,7 +66,7 @@ describe('elliptical contact, on-axis stresses by Boussinesq quadrature', () => 
 		expect(m.depth).toBeCloseTo(0.4809, 3);
 	});
 
-	it('tends to the line-contact result, 0.30 p0 at 0.78 b (Johnson 1985 §4.3 [M]), as a/b grows', () => {
+	it('tends to the line-contact result, 0.30 p0 at 0.78 b (Johnson 1985 §4.3, from memory), as a/b grows', () => {
 		const m = ellipticalMaxShear(200, 1, 0.3);
 		expect(m.tau).toBeCloseTo(0.3, 2);
 		expect(m.depth).toBeCloseTo(0.786, 2);
@@ -79,7 +79,7 @@ describe('elliptical contact, on-axis stresses by Boussinesq quadrature', () => 
 		expect(large.depth / 10).toBeCloseTo(small.depth, 6);
 	});
 
-	it('agrees with a plain polar quadrature of the same integral for a/b = 3 [C]', () => {
+	it('agrees with a plain polar quadrature of the same integral for a/b = 3, computed', () => {
 		// Independent quadrature: x = a s cos φ, y = b s sin φ, s = sin t, many nodes, one panel.
 		const a = 3;
 		const b = 1;

@@ -1,7 +1,8 @@
 /**
  * Stresses on the axis of symmetry below a Hertz contact, and the largest shear stress there.
  *
- * Circular contact: closed-form on-axis stresses, Johnson, Contact Mechanics (1985) eq. (3.45) [M]:
+ * Circular contact: closed-form on-axis stresses, Johnson, Contact Mechanics (1985) eq. (3.45)
+ * (equation number from memory):
  *   σ_r/p0 = −(1+ν)[1 − (z/a)·atan(a/z)] + ½·(1 + z²/a²)⁻¹,   σ_z/p0 = −(1 + z²/a²)⁻¹,
  * and τ_max = ½|σ_z − σ_r|, maximised over depth numerically (golden-section search) for the
  * body's own ν — the familiar 0.31 p0 at 0.48 a holds only near ν = 0.3.
