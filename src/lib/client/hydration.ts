@@ -5,16 +5,15 @@
 let hydrated = false;
 
 /**
- * Called once by the root layout after mount. Also marks the document (`<html data-hydrated>`):
- * input typed before hydration can be reset by it, so scripted visitors (browser tests) wait for
- * the mark before they type.
+ * Called once, on mount, by OfflineSupport (part of the root layout). Also marks the document
+ * (`<html data-hydrated>`): input typed before hydration can be reset by it, so scripted visitors
+ * (browser tests) wait for the mark before they type.
  */
 export function markHydrated(): void {
 	hydrated = true;
 	document.documentElement.dataset.hydrated = '';
 }
 
-/** True after the first page of this visit has hydrated. */
 export function isHydrated(): boolean {
 	return hydrated;
 }

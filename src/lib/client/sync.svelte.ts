@@ -1,7 +1,9 @@
 /**
- * The sync loop: sends the outbox to `POST /api/sync` in batches and keeps the counts the
- * indicator shows. It runs when the app starts, when the network comes back, when someone taps
- * "Sync now", and on a timer that backs off while the server cannot be reached.
+ * The sync loop: sends the outbox to `POST /api/sync` in batches, then waiting photos, refreshes
+ * the register copy, and keeps the counts the indicator shows. It runs when the app starts, when
+ * the network comes back or the tab comes back into view, once a logged entry's undo window has
+ * passed, when someone taps "Sync now", and on a timer that backs off while the server cannot be
+ * reached.
  */
 import { getContext, setContext } from 'svelte';
 import {
@@ -26,9 +28,12 @@ const isoNow = () => new Date().toISOString();
 
 type BatchOutcome = 'ok' | 'network' | 'signed-out' | 'server';
 
-/** What one pass learnt from the answers: whether the server took anything, and the entries it failed on alone. */
+/**
+ * What one pass learnt from the answers: whether the server took anything, and the entries it
+ * failed on alone.
+ */
 interface PassReport {
-	/** The server answered some request of this pass properly (200, or a 400 it explained). */
+	/** The server answered some request of this pass: results, or one refused entry (400, 413). */
 	answered: boolean;
 	/** Single entries that got a 5xx: set aside if the server works for the others. */
 	suspects: { id: string; error: string }[];
@@ -54,7 +59,10 @@ export class SyncEngine {
 	syncing = $state(false);
 	/** The last failure other than a lost network, in words. */
 	problem = $state<string | null>(null);
-	/** Goes up on every outbox change, so views listing entries know to re-read. */
+	/**
+	 * Goes up whenever the counts are re-read (any outbox or photo change, every pass), so views
+	 * listing entries know to re-read.
+	 */
 	revision = $state(0);
 
 	#user: SyncUser = null;
@@ -231,8 +239,8 @@ export class SyncEngine {
 	}
 
 	/**
-	 * Sends one batch and files the answers; see the sync contract in issue 4 §4. A batch the
-	 * server refuses or fails on as a whole is split in halves until the entry at fault is found
+	 * Sends one batch and files the per-entry answers (outbox.applyResults). A batch the server
+	 * refuses or fails on as a whole is split in halves until the entry at fault is found
 	 * (refusalAction), so one bad entry never holds back the rest of the outbox.
 	 */
 	async #send(batch: outbox.OutboxEntry[], report: PassReport): Promise<BatchOutcome> {

@@ -1,10 +1,11 @@
 /**
  * The fold: a fixture's state (fold-state.ts) updated one event at a time.
  *
- * Events are folded in the order given. The server folds them in (occurredAt, id) order; when a late
- * event from an offline phone is older than the state's last event (isOutOfOrder), it recomputes
- * from the full history instead. A policy change also calls for a recompute, since window sizes are
- * part of the state.
+ * Events are folded in the order given. The server folds them in (occurredAt, id) order
+ * (compareEvents); when a late event from an offline phone sorts before the state's last event, it
+ * refolds the fixture's whole history instead (recompute). Window sizes are part of the state, so a
+ * policy change re-evaluates flags at once but shapes only the events folded after it, until the
+ * states are rebuilt (`npm run state:rebuild -- --fix`).
  *
  * Break-in is required for a new fixture and after any part swap or a cleaning that relubricated the
  * contacts. It is complete once it has run breakInMinCycles cycles and the last two settling windows

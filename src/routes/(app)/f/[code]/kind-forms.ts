@@ -1,7 +1,9 @@
 /**
  * The card's quick forms, one per event kind, as data: which fields, how they become the
- * payload the shared schema checks. Full forms for inspections and break-in runs come later;
- * these log the basic event.
+ * payload the shared schema checks. Two kinds have fuller forms elsewhere: the card logs an
+ * inspection with InspectionForm (a grade per contact), so the entry here only names its button;
+ * a break-in run with readings is logged on the break-in page, while the quick form here logs the
+ * cycles of a run without readings.
  */
 import type { CautionKind } from '$lib/content/cautions';
 import { CLEANING_CAUTIONS } from '$lib/domain/fixture-cautions';
