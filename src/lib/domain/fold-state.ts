@@ -137,7 +137,6 @@ export function newBreakIn(
 	};
 }
 
-/** Options for initialState. */
 export interface InitialStateOptions {
 	/** Commissioning time (ISO 8601); default: the first event's time. */
 	since?: string | null;
