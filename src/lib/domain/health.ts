@@ -32,16 +32,16 @@
  * - While a break-in is running, out-of-spec, drift and the forecast are not judged: those
  *   readings describe settling, and the break-in flag already says the fixture is not ready.
  */
-import type { EventKind, FixtureEvent } from '../schemas/events';
-import { type InspectionVerdict, type WearMark, WEAR_MARKS } from '../schemas/wear';
 import { DomainInputError } from './errors';
+import type { EventKind, FixtureEvent } from './events';
+import type { DerivedStatus } from './fixture-status';
+import type { FlagKind } from './flag-kinds';
 import { type Forecast, forecastCrossing } from './forecast';
 import { type Policy, assertPolicy } from './policy';
 import { D2, RULE_LENGTH, RULE_TEXT, type RunRule, runRuleHits } from './spc';
 import { isoMs } from './time';
+import { type InspectionVerdict, type WearMark, WEAR_MARKS } from './wear';
 
-/** Derived status: on hold wins over breaking in. */
-export type FixtureStatus = 'in-service' | 'breaking-in' | 'on-hold';
 /** Why a break-in is (or was last) required. */
 export type BreakInReason = 'new' | 'part-swap' | 'relubricated';
 
@@ -99,7 +99,7 @@ export interface FixtureState {
 	since: string | null;
 	/** Whether `since` is a commissioning date (true) or the first event's time (false). */
 	sinceIsCommissioning: boolean;
-	status: FixtureStatus;
+	status: DerivedStatus;
 	onHold: boolean;
 	holdReason: string | null;
 	totalCycles: number;
@@ -125,16 +125,6 @@ export interface FixtureState {
 	/** From the last inspection: highest grade over the contacts, verdict, marks seen. */
 	wear: { grade: number | null; verdict: InspectionVerdict | null; marks: WearMark[] };
 }
-
-/** The flags of the health rules. */
-export type FlagKind =
-	| 'break-in-due'
-	| 'cleaning-due'
-	| 'inspection-due'
-	| 'out-of-spec'
-	| 'drift'
-	| 'replace-soon'
-	| 'replace-now';
 
 /** A flag with its reason in words and the numbers behind it. */
 export interface Flag {
@@ -439,7 +429,7 @@ function checkSettled(w: FixtureState, p: Policy, at: string): void {
 	w.recent = [];
 }
 
-function statusOf(w: FixtureState): FixtureStatus {
+function statusOf(w: FixtureState): DerivedStatus {
 	return w.onHold ? 'on-hold' : w.breakIn.required ? 'breaking-in' : 'in-service';
 }
 
