@@ -11,17 +11,17 @@
  */
 import { createHash } from 'node:crypto';
 import { seededRandom } from '../src/lib/domain/fixture-code';
+import type { EventPayloadInputs, FixtureEvent } from '../src/lib/domain/events';
+import type { FixtureType } from '../src/lib/domain/fixture-types';
+import type { FlagKind } from '../src/lib/domain/flag-kinds';
 import {
 	applyEvent,
 	evaluateFlags,
 	initialState,
-	type FixtureState,
-	type FlagKind
+	type FixtureState
 } from '../src/lib/domain/health';
 import type { Policy } from '../src/lib/domain/policy';
-import type { EventPayloadInputs, FixtureEvent } from '../src/lib/schemas/events';
-import type { FixtureType } from '../src/lib/schemas/fixture';
-import type { WearMark } from '../src/lib/schemas/wear';
+import type { WearMark } from '../src/lib/domain/wear';
 import type { DemoCondition, DemoFixture, DemoStory } from './demo-scenario';
 
 const DAY_MS = 86_400_000;

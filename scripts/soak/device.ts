@@ -1,7 +1,7 @@
 /**
  * One simulated phone of the soak. It follows the rules of the phone's sync loop
  * (src/lib/client/sync.svelte.ts) and photo uploads (src/lib/client/photos.ts), with the same
- * pure pieces from src/lib/domain/sync-schedule.ts:
+ * pure pieces from src/lib/client/sync-schedule.ts:
  *
  * - the outbox goes to `POST /api/sync` in batches of SYNC_BATCH_SIZE, oldest first, one pass at a
  *   time, stopping at the first batch that fails; accepted and duplicate entries leave it;
@@ -26,7 +26,7 @@ import {
 	parseRetryAfter,
 	refusalAction,
 	SYNC_BATCH_SIZE
-} from '../../src/lib/domain/sync-schedule.ts';
+} from '../../src/lib/client/sync-schedule.ts';
 import { seededRandom } from '../../src/lib/domain/fixture-code.ts';
 import type { OutEvent, OutPhoto, Work } from './workload.ts';
 

@@ -4,8 +4,8 @@
  * server. A photo leaves the device only when the server has it; one the server refuses stays,
  * with the reason, until a person discards it.
  */
-import { sniffImage } from '$lib/domain/image-type';
-import { retryDelayMs } from '$lib/domain/sync-schedule';
+import { sniffImage } from '$lib/images/image-type';
+import { retryDelayMs } from '$lib/client/sync-schedule';
 import { PHOTO_LIMIT_BYTES, THUMB_MAX_PX } from '$lib/schemas/attachments';
 import { clientDb, type PhotoBlob } from './db';
 import { newUuid } from './device-id';

@@ -14,7 +14,7 @@ import {
 	refusalAction,
 	SYNC_BATCH_SIZE,
 	SYNC_IDLE_POLL_MS
-} from '$lib/domain/sync-schedule';
+} from '$lib/client/sync-schedule';
 import { getMeta, setMeta } from './db';
 import { getDeviceId } from './device-id';
 import * as outbox from './outbox';

@@ -1,7 +1,7 @@
 /**
- * Nestmark's mark as data — a ball seated in a vee groove on a rounded tile — in the 64 × 64
- * units of Logo.svelte's viewBox, so printed labels and on-screen previews draw the same shape.
- * Keep in step with Logo.svelte.
+ * Nestmark's mark as data — a ball seated in a vee groove on a rounded tile — in a 64 × 64 unit
+ * square. The one source of the shape: MarkShapes.svelte draws it for the logo and the label
+ * preview, and the label PDF draws the same numbers, so screen and print cannot drift apart.
  */
 export const MARK = {
 	viewBox: 64,

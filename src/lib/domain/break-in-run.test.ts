@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import type { FixtureEvent } from '../schemas/events';
+import type { FixtureEvent } from './events';
 import {
 	type RunCycle,
 	countRefusal,

@@ -10,7 +10,7 @@ import {
 	type FixtureEvent,
 	MAX_CYCLES_PER_EVENT,
 	MAX_READINGS_PER_BREAK_IN
-} from '../schemas/events';
+} from './events';
 import { DomainInputError } from './errors';
 import { type BreakInProgress, type WindowPoint, applyEvent, initialState } from './health';
 import { DEFAULT_POLICY, type Policy } from './policy';

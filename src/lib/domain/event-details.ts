@@ -4,7 +4,7 @@
  * inspection's photo ids. Payloads are read defensively: unknown fields are ignored and a missing
  * field leaves its line out, so an event stored under an older payload shape still reads well.
  */
-import { WEAR_GRADES } from '../schemas/wear';
+import { WEAR_GRADES } from './wear';
 import { describeReading } from './event-history';
 
 /** An event's payload in words. */

@@ -17,6 +17,7 @@
  *   readings describe settling, and the break-in flag already says the fixture is not ready.
  */
 import { DomainInputError } from './errors';
+import type { FlagKind } from './flag-kinds';
 import {
 	DRIFT_MEMORY,
 	DRIFT_RULES,
@@ -29,16 +30,6 @@ import { type Policy, assertPolicy } from './policy';
 import { count, day, num } from './flag-words';
 import { D2, RULE_TEXT, type RunRule, runRuleHits } from './spc';
 import { isoMs } from './time';
-
-/** The flags of the health rules. */
-export type FlagKind =
-	| 'break-in-due'
-	| 'cleaning-due'
-	| 'inspection-due'
-	| 'out-of-spec'
-	| 'drift'
-	| 'replace-soon'
-	| 'replace-now';
 
 /** A flag with its reason in words and the numbers behind it. */
 export interface Flag {

@@ -8,12 +8,11 @@
  * series of windowed R by cycle for the forecast, and per-axis SPC baseline sums with a short tail
  * for the run rules — so folding costs O(1) per event whatever the length of the history.
  */
-import type { InspectionVerdict, WearMark } from '../schemas/wear';
 import { DomainInputError } from './errors';
+import type { DerivedStatus } from './fixture-status';
 import { RULE_LENGTH, type RunRule } from './spc';
+import type { InspectionVerdict, WearMark } from './wear';
 
-/** Derived status: on hold wins over breaking in. */
-export type FixtureStatus = 'in-service' | 'breaking-in' | 'on-hold';
 /** Why a break-in is (or was last) required. */
 export type BreakInReason = 'new' | 'part-swap' | 'relubricated';
 
@@ -71,7 +70,7 @@ export interface FixtureState {
 	since: string | null;
 	/** Whether `since` is a commissioning date (true) or the first event's time (false). */
 	sinceIsCommissioning: boolean;
-	status: FixtureStatus;
+	status: DerivedStatus;
 	onHold: boolean;
 	holdReason: string | null;
 	totalCycles: number;

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import type { FixtureEvent } from '../schemas/events';
+import type { FixtureEvent } from './events';
 import { evaluateFlags } from './flag-rules';
 import { applyEvent, compareEvents, foldEvents, isOutOfOrder, recompute } from './fold';
 import { type FixtureState, cloneState, emptyState, initialState } from './fold-state';

@@ -13,9 +13,9 @@
  * is within spec. A fixture without readings cannot show it has settled. R of a set of seatings is
  * the largest per-axis R = 4s (ISO 230-2 style) over the measured axes.
  */
-import type { EventKind, FixtureEvent } from '../schemas/events';
-import { type WearMark, WEAR_MARKS } from '../schemas/wear';
 import { DomainInputError } from './errors';
+import type { EventKind, FixtureEvent } from './events';
+import type { DerivedStatus } from './fixture-status';
 import {
 	copyBreakIn,
 	copyReadingParts,
@@ -27,13 +27,13 @@ import {
 	newSpc,
 	type BreakInReason,
 	type FixtureState,
-	type FixtureStatus,
 	type InitialStateOptions,
 	type StoredReading
 } from './fold-state';
 import { addReading, advance } from './fold-sums';
 import { type Policy, assertPolicy } from './policy';
 import { isoMs } from './time';
+import { type WearMark, WEAR_MARKS } from './wear';
 
 // Differences of windowed R at the tolerance should not fail on binary rounding.
 const SETTLE_EPS = 1e-9;
@@ -98,7 +98,7 @@ function checkSettled(w: FixtureState, p: Policy, at: string): void {
 	w.recent = [];
 }
 
-function statusOf(w: FixtureState): FixtureStatus {
+function statusOf(w: FixtureState): DerivedStatus {
 	return w.onHold ? 'on-hold' : w.breakIn.required ? 'breaking-in' : 'in-service';
 }
 

@@ -2,7 +2,7 @@
  * Shared by the fold and flag-rule tests: a small policy and a builder of event histories.
  * Not a test file itself (no vitest imports), so it can be imported by both.
  */
-import type { FixtureEvent } from '../schemas/events';
+import type { FixtureEvent } from './events';
 import type { Flag } from './flag-rules';
 import { DEFAULT_POLICY, type Policy } from './policy';
 

@@ -18,7 +18,6 @@ export {
 	type BreakInProgress,
 	type BreakInReason,
 	type FixtureState,
-	type FixtureStatus,
 	type InitialStateOptions,
 	type StoredReading,
 	type WindowAccumulator,
@@ -33,4 +32,4 @@ export {
 	readingCycle,
 	recompute
 } from './fold';
-export { evaluateFlags, type Flag, type FlagKind } from './flag-rules';
+export { evaluateFlags, type Flag } from './flag-rules';

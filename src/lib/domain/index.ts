@@ -86,14 +86,49 @@ export {
 	TREND_MAX_WINDOWS,
 	FORECAST_MIN_WINDOWS,
 	type FixtureState,
-	type FixtureStatus,
 	type BreakInReason,
 	type BreakInProgress,
 	type StoredReading,
 	type WindowPoint,
 	type AxisSpc,
 	type Flag,
-	type FlagKind,
 	type InitialStateOptions
 } from './health';
-export type { FixtureEvent } from '../schemas/events';
+export {
+	EVENT_KINDS,
+	MAX_READING_UM,
+	MAX_CYCLES_PER_EVENT,
+	MAX_READINGS_PER_BREAK_IN,
+	CLEANING_METHODS,
+	SWAPPABLE_PARTS,
+	type EventKind,
+	type CleaningMethod,
+	type SwappablePart,
+	type EventReading,
+	type InspectionContact,
+	type EventPayloadInputs,
+	type FixtureEvent
+} from './events';
+export {
+	WEAR_GRADES,
+	WEAR_GRADE_MAX,
+	WEAR_MARKS,
+	INSPECTION_VERDICTS,
+	type WearGrade,
+	type WearMark,
+	type InspectionVerdict
+} from './wear';
+export { FLAG_KINDS, type FlagKind } from './flag-kinds';
+export {
+	FIXTURE_STATUSES,
+	DERIVED_STATUSES,
+	type FixtureStatus,
+	type DerivedStatus
+} from './fixture-status';
+export { FIXTURE_TYPES, type FixtureType } from './fixture-types';
+export {
+	WORK_ORDER_ACTIONS,
+	WORK_ORDER_STATUSES,
+	type WorkOrderAction,
+	type WorkOrderStatus
+} from './work-orders';

@@ -2,7 +2,7 @@
  * A fixture's health policy: the shop's numbers behind every flag. Field names are also the column
  * names of the policies table (in snake_case), so keep them.
  */
-import { WEAR_GRADE_MAX } from '../schemas/wear';
+import { WEAR_GRADE_MAX } from './wear';
 import { DomainInputError, requireInteger, requireNonNegative, requirePositive } from './errors';
 
 /** The policy fields; units in the names (µm, cycles, days). */

@@ -1,30 +1,40 @@
 /**
- * Event kinds and their payloads: the sync contract between the phone's outbox and the server.
- * Kind names and field names here must not change without a migration of stored events.
+ * The zod schemas of event payloads: the sync contract between the phone's outbox and the server,
+ * checked at the boundary. Kinds, limits and payload shapes are defined in `$lib/domain/events`;
+ * the compile-time check below proves each schema accepts exactly the domain's shape.
  * Every object is strict (unknown fields are rejected) and every number has a unit and a range.
  */
 import { z } from 'zod';
+import {
+	CLEANING_METHODS,
+	EVENT_KINDS,
+	type EventKind,
+	type EventPayloadInputs,
+	MAX_CYCLES_PER_EVENT,
+	MAX_READINGS_PER_BREAK_IN,
+	MAX_READING_UM,
+	SWAPPABLE_PARTS
+} from '../domain/events';
 import type { Role } from './roles';
 import { unicodeString } from './text';
 import { inspectionVerdictSchema, wearGradeSchema, wearMarkSchema } from './wear';
 
-/** The nine kinds of fixture event. */
-export const EVENT_KINDS = [
-	'reseat',
-	'cleaning',
-	'inspection',
-	'break-in',
-	'part-swap',
-	'move',
-	'hold',
-	'release',
-	'note'
-] as const;
+export {
+	CLEANING_METHODS,
+	EVENT_KINDS,
+	MAX_CYCLES_PER_EVENT,
+	MAX_READINGS_PER_BREAK_IN,
+	MAX_READING_UM,
+	SWAPPABLE_PARTS,
+	type EventKind,
+	type EventPayloadInputs,
+	type FixtureEvent
+} from '../domain/events';
+
 /** One of EVENT_KINDS. */
 export const eventKindSchema = z.enum(EVENT_KINDS, {
 	error: `Kind must be one of: ${EVENT_KINDS.join(', ')}`
 });
-export type EventKind = z.infer<typeof eventKindSchema>;
 
 /** Which kinds each role may log (a person with several roles may log the union). */
 export const EVENT_KINDS_BY_ROLE: Record<Role, readonly EventKind[]> = {
@@ -39,13 +49,6 @@ export const EVENT_KINDS_BY_ROLE: Record<Role, readonly EventKind[]> = {
 export function mayLogKind(roles: readonly Role[], kind: EventKind): boolean {
 	return roles.some((role) => EVENT_KINDS_BY_ROLE[role]?.includes(kind));
 }
-
-/** Largest indicator reading accepted, µm (10 mm: anything bigger is a slip of the finger). */
-export const MAX_READING_UM = 10_000;
-/** Largest cycle count in one event. */
-export const MAX_CYCLES_PER_EVENT = 100_000;
-/** Most readings one break-in event carries. */
-export const MAX_READINGS_PER_BREAK_IN = 10_000;
 
 const micrometres = (field: string) =>
 	z
@@ -84,15 +87,6 @@ export const reseatPayloadSchema = z.strictObject({
 	cycles: cycles('Cycles').default(1),
 	readings: readingSchema.optional()
 });
-
-/** Cleaning methods (Nestmark's list; compressed air and solvents carry cautions in the UI). */
-export const CLEANING_METHODS = [
-	'dry-wipe',
-	'solvent-wipe',
-	'ultrasonic-bath',
-	'air-blow',
-	'other'
-] as const;
 
 /** Cleaning: method, whether the contacts were relubricated, and with what. */
 export const cleaningPayloadSchema = z
@@ -153,9 +147,6 @@ export const breakInPayloadSchema = z
 		path: ['readings']
 	});
 
-/** Parts a swap can replace. 'seats' covers vees, grooves, sockets and flats. */
-export const SWAPPABLE_PARTS = ['balls', 'seats', 'preload', 'whole-fixture', 'other'] as const;
-
 /** Part swap: what was replaced. */
 export const partSwapPayloadSchema = z
 	.strictObject({
@@ -202,18 +193,30 @@ export const PAYLOAD_SCHEMAS = {
 	note: notePayloadSchema
 } as const satisfies Record<EventKind, z.ZodType>;
 
-/** Payloads as accepted on input (defaults not yet applied). */
-export type EventPayloadInputs = { [K in EventKind]: z.input<(typeof PAYLOAD_SCHEMAS)[K]> };
 /** Payloads after parsing (defaults applied). */
 export type EventPayloads = { [K in EventKind]: z.output<(typeof PAYLOAD_SCHEMAS)[K]> };
 
+/** True only when A and B are identical types (optional fields included, unlike mutual `extends`). */
+type Same<A, B> =
+	(<T>() => T extends A ? 1 : 2) extends <T>() => T extends B ? 1 : 2 ? true : false;
 /**
- * A validated event as the computation core folds it; payloads may omit defaulted fields, which the
- * core fills in the same way the schemas do.
+ * Compile-time proof that each schema accepts exactly the payload shape `$lib/domain/events`
+ * declares: a field added to one and not the other fails `npm run check` here.
  */
-export type FixtureEvent = {
-	[K in EventKind]: { id: string; kind: K; occurredAt: string; payload: EventPayloadInputs[K] };
-}[EventKind];
+const PAYLOADS_MATCH_DOMAIN: {
+	[K in EventKind]: Same<z.input<(typeof PAYLOAD_SCHEMAS)[K]>, EventPayloadInputs[K]>;
+} = {
+	reseat: true,
+	cleaning: true,
+	inspection: true,
+	'break-in': true,
+	'part-swap': true,
+	move: true,
+	hold: true,
+	release: true,
+	note: true
+};
+void PAYLOADS_MATCH_DOMAIN;
 
 const EARLIEST = Date.parse('2000-01-01T00:00:00Z');
 const LATEST = Date.parse('2100-01-01T00:00:00Z');

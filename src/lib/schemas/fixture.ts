@@ -1,13 +1,20 @@
-/** Kinds of fixture the register knows. */
-export const FIXTURE_TYPES = [
-	'three-vee',
-	'trihedral-vee-flat',
-	'pallet',
-	'vise',
-	'plate',
-	'other'
-] as const;
-export type FixtureType = (typeof FIXTURE_TYPES)[number];
+/**
+ * The register's enumerations with their names on screen. The members are defined in `$lib/domain`
+ * and re-exported here so forms and pages find them beside their labels.
+ */
+import type { FixtureStatus } from '../domain/fixture-status';
+import type { FixtureType } from '../domain/fixture-types';
+import type { FlagKind } from '../domain/flag-kinds';
+
+export { FIXTURE_STATUSES, type FixtureStatus } from '../domain/fixture-status';
+export { FIXTURE_TYPES, type FixtureType } from '../domain/fixture-types';
+export { FLAG_KINDS, type FlagKind } from '../domain/flag-kinds';
+export {
+	WORK_ORDER_ACTIONS,
+	WORK_ORDER_STATUSES,
+	type WorkOrderAction,
+	type WorkOrderStatus
+} from '../domain/work-orders';
 
 export const FIXTURE_TYPE_LABELS: Record<FixtureType, string> = {
 	'three-vee': 'Three-vee kinematic coupling',
@@ -18,28 +25,12 @@ export const FIXTURE_TYPE_LABELS: Record<FixtureType, string> = {
 	other: 'Other fixture'
 };
 
-/** Life-cycle status of a fixture. */
-export const FIXTURE_STATUSES = ['in-service', 'breaking-in', 'on-hold', 'retired'] as const;
-export type FixtureStatus = (typeof FIXTURE_STATUSES)[number];
-
 export const FIXTURE_STATUS_LABELS: Record<FixtureStatus, string> = {
 	'in-service': 'In service',
 	'breaking-in': 'Breaking in',
 	'on-hold': 'On hold',
 	retired: 'Retired'
 };
-
-/** Health flags the server raises (see `$lib/domain` evaluateFlags). */
-export const FLAG_KINDS = [
-	'break-in-due',
-	'cleaning-due',
-	'inspection-due',
-	'out-of-spec',
-	'drift',
-	'replace-soon',
-	'replace-now'
-] as const;
-export type FlagKind = (typeof FLAG_KINDS)[number];
 
 export const FLAG_LABELS: Record<FlagKind, string> = {
 	'break-in-due': 'Break-in due',
@@ -50,23 +41,3 @@ export const FLAG_LABELS: Record<FlagKind, string> = {
 	'replace-soon': 'Replace soon',
 	'replace-now': 'Replace now'
 };
-
-/** What a work order asks for. */
-export const WORK_ORDER_ACTIONS = [
-	'replace-balls',
-	'replace-seats',
-	'replace-fixture',
-	're-break-in',
-	'inspect'
-] as const;
-export type WorkOrderAction = (typeof WORK_ORDER_ACTIONS)[number];
-
-/** Where a work order stands. */
-export const WORK_ORDER_STATUSES = [
-	'planned',
-	'scheduled',
-	'underway',
-	'done',
-	'cancelled'
-] as const;
-export type WorkOrderStatus = (typeof WORK_ORDER_STATUSES)[number];

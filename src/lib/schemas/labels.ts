@@ -6,7 +6,7 @@ import {
 	STOCK_IDS,
 	type PaperId,
 	type StockId
-} from '$lib/domain/label-layouts';
+} from '$lib/labels/sheet-layouts';
 
 /** Most labels one request renders (about 45 A4 sheets of the smallest size). */
 export const MAX_LABELS = 3000;

@@ -7,7 +7,7 @@
 import { createHash } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
-import { imageSizeProblem, sniffImage, type ImageType } from '$lib/domain/image-type';
+import { imageSizeProblem, sniffImage, type ImageType } from '$lib/images/image-type';
 import { PHOTO_LIMIT_BYTES } from '$lib/schemas/attachments';
 import { mayLogKind } from '$lib/schemas/events';
 import { db, schema } from './db';

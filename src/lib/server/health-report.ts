@@ -5,15 +5,25 @@
 import { and, desc, eq, isNull, sql } from 'drizzle-orm';
 import type { RowDataPacket } from 'mysql2/promise';
 import { fixtureForecast, recentRepeatability, type FixtureState } from '../domain/health';
-import { forecastCrossing, type Forecast } from '../domain/forecast';
+import { forecastCrossing } from '../domain/forecast';
 import type { Policy } from '../domain/policy';
-import { individualsChart, type IndividualsChart } from '../domain/spc';
-import { breakInCurve, type BreakInCurve, type CurveReading } from '../domain/break-in-curves';
+import { individualsChart } from '../domain/spc';
+import { breakInCurve, type CurveReading } from '../domain/break-in-curves';
 import { normaliseFixtureCode } from '../domain/fixture-code';
 import type { FlagsQuery } from '../schemas/flags-query';
+import type {
+	AxisChart,
+	BreakInRun,
+	FixtureHealth,
+	OpenFlagRow,
+	ReadingPoint,
+	TrendLine
+} from '../schemas/health-views';
 import { db, getPool, schema } from './db';
 import { loadHealthFixtures } from './health';
 import { initialStateFor, policiesFor } from './state-store';
+
+export type { AxisChart, BreakInRun, FixtureHealth, OpenFlagRow, ReadingPoint, TrendLine };
 
 /** Readings returned for the charts (the latest ones). */
 export const CHART_READINGS = 500;
@@ -21,18 +31,6 @@ export const CHART_READINGS = 500;
 export const CHART_BREAK_IN_RUNS = 8;
 /** Phase-I points for the chart limits (as the domain's drift rule uses). */
 const BASELINE = 20;
-
-/** An open flag with its fixture and place. */
-export interface OpenFlagRow {
-	id: number;
-	kind: string;
-	reason: string;
-	figures: Record<string, number | string | null> | null;
-	raisedAt: string;
-	raisedByEventId: string | null;
-	fixture: { code: string; name: string; type: string; status: string };
-	location: { id: number; name: string; area: { id: number; name: string } };
-}
 
 /** Open flags, newest first, optionally of one kind or in one area. */
 export async function openFlags(query: FlagsQuery): Promise<OpenFlagRow[]> {
@@ -81,72 +79,6 @@ export async function openFlags(query: FlagsQuery): Promise<OpenFlagRow[]> {
 			area: { id: r.areaId, name: r.areaName }
 		}
 	}));
-}
-
-/** One reading of the chart series: the seating's number among those shown and its axes. */
-export interface ReadingPoint {
-	n: number;
-	eventId: string;
-	occurredAt: string;
-	dx: number | null;
-	dy: number | null;
-	dz: number | null;
-}
-
-/** Individuals / moving-range chart of one axis. */
-export interface AxisChart extends IndividualsChart {
-	axis: 'x' | 'y' | 'z';
-	values: number[];
-	/** Seating number (ReadingPoint.n) of each value. */
-	at: number[];
-	baseline: number;
-}
-
-/** A trend line over the windowed R with its spec crossing. */
-export interface TrendLine extends Forecast {
-	method: 'ols' | 'theil-sen';
-	/** The intercept convention (Theil–Sen only). */
-	convention: 'separate' | null;
-}
-
-/** One past break-in run and its rolling R (see breakInCurve). */
-export interface BreakInRun extends BreakInCurve {
-	eventId: string;
-	occurredAt: string;
-	cycles: number;
-	readings: number;
-	/** Window of the rolling R (the policy's settling window). */
-	window: number;
-}
-
-/** Everything GET /api/fixtures/[code]/health returns. */
-export interface FixtureHealth {
-	fixture: { id: number; code: string; name: string; type: string; status: string };
-	policy: Policy;
-	state: FixtureState;
-	hasState: boolean;
-	figures: {
-		repeatability: ReturnType<typeof recentRepeatability>;
-		spec_um: number;
-		forecast: ReturnType<typeof fixtureForecast>;
-	};
-	flags: {
-		open: Omit<OpenFlagRow, 'fixture' | 'location'>[];
-		recent: (Omit<OpenFlagRow, 'fixture' | 'location'> & {
-			clearedAt: string;
-			clearedByEventId: string | null;
-		})[];
-	};
-	series: {
-		/** Windowed R against total cycles (the windows the forecast uses). */
-		repeatability: { cycle: number; R: number }[];
-		breakIn: { cycle: number; R: number }[];
-		/** The latest break-in runs with readings, oldest first, each with its rolling R. */
-		breakInRuns: BreakInRun[];
-		forecasts: TrendLine[];
-		readings: ReadingPoint[];
-		spc: AxisChart[];
-	};
 }
 
 const AXES = [

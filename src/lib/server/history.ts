@@ -1,8 +1,11 @@
 import { and, count, desc, eq, lt, or } from 'drizzle-orm';
-import type { EventKind } from '../schemas/events';
+import type { EventKind } from '../domain/events';
 import { HISTORY_CURSOR, historyCursor } from '../schemas/history-query';
+import type { FixtureHistory, HistoryEntry, TimelinePage } from '../schemas/history-views';
 import { normaliseFixtureCode } from '../domain/fixture-code';
 import { db, schema } from './db';
+
+export type { FixtureHistory, HistoryEntry, TimelinePage };
 
 /** The columns of one history entry with who logged it (list and timeline alike). */
 const ENTRY_COLUMNS = {
@@ -41,23 +44,6 @@ function toEntry(r: {
 	};
 }
 
-/** One logged event as the history API returns it. */
-export interface HistoryEntry {
-	id: string;
-	kind: string;
-	occurredAt: string;
-	receivedAt: string;
-	deviceId: string;
-	payload: Record<string, unknown>;
-	user: { id: string; name: string; email: string | null };
-}
-
-/** A fixture's history page: which fixture, and its newest events. */
-export interface FixtureHistory {
-	fixture: { code: string; name: string };
-	events: HistoryEntry[];
-}
-
 /**
  * The newest `limit` events of the fixture with `code` (any spelling a person might type),
  * newest first by when they happened; null when no such fixture exists.
@@ -87,15 +73,6 @@ export async function fixtureEvents(code: string, limit: number): Promise<Fixtur
 		fixture: { code: fixture.code, name: fixture.name },
 		events: rows.map(toEntry)
 	};
-}
-
-/** One page of a fixture's timeline. */
-export interface TimelinePage {
-	events: HistoryEntry[];
-	/** Cursor of the next older page; null when this page reaches the first entry. */
-	older: string | null;
-	/** How many events of each kind the fixture has (for the filter). */
-	kinds: Partial<Record<EventKind, number>>;
 }
 
 /**

@@ -3,6 +3,9 @@ import { z } from 'zod';
 import { db, type Db } from './db';
 import { areas, locations, sites } from './db/schema';
 import { assertRole, type Actor } from './guard';
+import type { LocationPath, SiteNode } from '../schemas/places-views';
+
+export type { LocationPath, SiteNode };
 
 /*
  * Sites, areas and locations: where fixtures live. Names are unique within their parent
@@ -10,23 +13,6 @@ import { assertRole, type Actor } from './guard';
  */
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
-
-/** A location with the names of the places above it. */
-export interface LocationPath {
-	siteId: number;
-	site: string;
-	areaId: number;
-	area: string;
-	locationId: number;
-	location: string;
-}
-
-/** Sites with their areas and locations, in name order, for pickers and filters. */
-export interface SiteNode {
-	id: number;
-	name: string;
-	areas: { id: number; name: string; locations: { id: number; name: string }[] }[];
-}
 
 const placeNameSchema = z
 	.string({ error: 'Enter a name.' })

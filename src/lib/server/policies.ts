@@ -1,9 +1,12 @@
 import { eq, or } from 'drizzle-orm';
-import { DEFAULT_POLICY, POLICY_SOURCES, type Policy, type PolicySource } from '$lib/domain/policy';
+import { DEFAULT_POLICY, POLICY_SOURCES, type Policy } from '$lib/domain/policy';
 import { FIXTURE_TYPES, FIXTURE_TYPE_LABELS, type FixtureType } from '$lib/schemas/fixture';
 import { db } from './db';
 import { policies } from './db/schema';
 import { assertRole, type Actor } from './guard';
+import type { EffectivePolicyEntry, PolicySourceKind } from '../schemas/policy-views';
+
+export type { EffectivePolicyEntry, PolicySourceKind };
 
 /*
  * Which health-rule settings apply to a fixture, and where each one comes from. The most specific
@@ -29,21 +32,6 @@ export const POLICY_FIELD_INFO: Record<PolicyField, { label: string; unit: strin
 	forecastHorizonCycles: { label: 'Planning horizon', unit: 'cycles' }
 };
 const FIELDS = Object.keys(POLICY_FIELD_INFO) as PolicyField[];
-
-/** Where one effective value comes from. */
-export type PolicySourceKind = 'fixture' | 'class' | 'type' | 'default';
-
-/** One line of a fixture's effective policy. */
-export interface EffectivePolicyEntry {
-	field: PolicyField;
-	label: string;
-	unit: string;
-	/** Null means the rule is switched off (e.g. no calendar interval). */
-	value: number | null;
-	source: { kind: PolicySourceKind; label: string };
-	/** For built-in defaults: what the default is based on (a source, common practice…). */
-	note: PolicySource | null;
-}
 
 function pickPolicy(row: PolicyRow): Policy {
 	return Object.fromEntries(FIELDS.map((f) => [f, row[f]])) as unknown as Policy;

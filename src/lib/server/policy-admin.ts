@@ -8,37 +8,20 @@
  * every history under the current policies when that is wanted.
  */
 import { and, eq, isNull } from 'drizzle-orm';
-import { DEFAULT_POLICY, POLICY_SOURCES, type Policy, type PolicySource } from '../domain/policy';
+import { DEFAULT_POLICY, POLICY_SOURCES, type Policy } from '../domain/policy';
 import { normaliseFixtureCode } from '../domain/fixture-code';
 import { FIXTURE_TYPES, FIXTURE_TYPE_LABELS, type FixtureType } from '../schemas/fixture';
 import { POLICY_FIELDS, type PolicyValues } from '../schemas/policy-form';
 import { db, schema } from './db';
 import { assertRole, type Actor } from './guard';
 import { reevaluateFlags, type FlagChange } from './health';
+import type { PolicyFieldView, TypePolicyView } from '../schemas/policy-views';
 import { effectivePolicy, POLICY_FIELD_INFO, type EffectivePolicyEntry } from './policies';
+
+export type { PolicyFieldView, TypePolicyView };
 
 /** Who may view and change policies. */
 export const POLICY_EDITORS = ['supervisor', 'admin'] as const;
-
-/** One value of a type's policy with its origin. */
-export interface PolicyFieldView {
-	field: keyof Policy;
-	label: string;
-	unit: string;
-	value: number | null;
-	/** Built-in default and what it rests on, or null when the shop set another value. */
-	basis: PolicySource | null;
-	defaultValue: number | null;
-}
-
-/** A fixture type's policy as the page shows it. */
-export interface TypePolicyView {
-	type: FixtureType;
-	label: string;
-	saved: boolean;
-	updatedAt: string | null;
-	fields: PolicyFieldView[];
-}
 
 /** Every fixture type's policy (built-in defaults for a type with no saved row). */
 export async function typePolicies(actor: Actor): Promise<TypePolicyView[]> {

@@ -5,7 +5,7 @@ import { HEAVY_LIFT_KG } from '$lib/content/cautions';
 import { demoCodes, seedDemo } from '../../../scripts/seed';
 import { DEMO_FIXTURES, DEMO_STORIES } from '../../../scripts/demo-scenario';
 import { showsIntendedFlags } from '../../../scripts/demo-history';
-import type { FlagKind } from '$lib/domain/health';
+import type { FlagKind } from '$lib/domain/flag-kinds';
 import { rebuildStates } from '$lib/server/health';
 import { readPhoto } from '$lib/server/attachments';
 import { closeDb, db, makeFixture, resetDb, schema } from '../helpers/db';

@@ -18,7 +18,7 @@ import {
 	mmToPt,
 	placeLabels,
 	type SheetLayout
-} from '$lib/domain/label-layouts';
+} from '$lib/labels/sheet-layouts';
 import { LABEL_COUNT_KEY, renderLabelsPdf } from './pdf';
 import {
 	QR_QUIET_ZONE,

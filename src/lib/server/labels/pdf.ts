@@ -23,7 +23,7 @@ import {
 	type Box,
 	type LabelCell,
 	type SheetLayout
-} from '$lib/domain/label-layouts';
+} from '$lib/labels/sheet-layouts';
 import { QR_QUIET_ZONE, darkRuns, labelQrMatrix } from './qr';
 
 /** What one label shows. */

@@ -4,9 +4,9 @@ import {
 	QR_QUIET_ZONE,
 	labelUrl,
 	type ModuleGrid
-} from '$lib/domain/qr-modules';
+} from '$lib/labels/qr-modules';
 
-export { QR_ERROR_CORRECTION, QR_QUIET_ZONE, darkRuns, labelUrl } from '$lib/domain/qr-modules';
+export { QR_ERROR_CORRECTION, QR_QUIET_ZONE, darkRuns, labelUrl } from '$lib/labels/qr-modules';
 
 /**
  * The app's public origin for printed labels: ORIGIN from the environment, else `fallback`

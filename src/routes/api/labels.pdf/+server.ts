@@ -1,5 +1,5 @@
 import { json } from '@sveltejs/kit';
-import { computeSheetLayout, sheetsNeeded } from '$lib/domain/label-layouts';
+import { computeSheetLayout, sheetsNeeded } from '$lib/labels/sheet-layouts';
 import { MAX_LABELS, parseLabelParams } from '$lib/schemas/labels';
 import { apiUser } from '$lib/server/guard';
 import { renderLabelsPdf, type LabelContent } from '$lib/server/labels/pdf';

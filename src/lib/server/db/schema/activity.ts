@@ -11,7 +11,8 @@ import {
 	varchar
 } from 'drizzle-orm/mysql-core';
 import { json } from './json';
-import { FLAG_KINDS, WORK_ORDER_ACTIONS, WORK_ORDER_STATUSES } from '../../../schemas/fixture';
+import { FLAG_KINDS } from '../../../domain/flag-kinds';
+import { WORK_ORDER_ACTIONS, WORK_ORDER_STATUSES } from '../../../domain/work-orders';
 import { users } from './auth';
 import { fixtures } from './register';
 

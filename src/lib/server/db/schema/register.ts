@@ -11,7 +11,8 @@ import {
 	varchar
 } from 'drizzle-orm/mysql-core';
 import { json } from './json';
-import { FIXTURE_STATUSES, FIXTURE_TYPES } from '../../../schemas/fixture';
+import { FIXTURE_STATUSES } from '../../../domain/fixture-status';
+import { FIXTURE_TYPES } from '../../../domain/fixture-types';
 import { users } from './auth';
 
 const createdAt = () =>

@@ -6,7 +6,7 @@
  * cycles of a run without readings.
  */
 import type { CautionKind } from '$lib/content/cautions';
-import { CLEANING_CAUTIONS } from '$lib/domain/fixture-cautions';
+import { CLEANING_CAUTIONS } from '$lib/content/fixture-cautions';
 import type { EventKind } from '$lib/schemas/events';
 import { INSPECTION_VERDICTS, WEAR_GRADES, WEAR_MARKS } from '$lib/schemas/wear';
 

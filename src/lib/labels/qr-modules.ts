@@ -3,7 +3,7 @@
  * renderer on the server and the label preview in the browser.
  */
 
-import { isValidFixtureCode } from './fixture-code';
+import { isValidFixtureCode } from '$lib/domain/fixture-code';
 
 /**
  * Error correction level Q restores about 25 % of the symbol's codewords (ISO/IEC 18004 levels:

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { FIXTURE_CODE_ALPHABET, checkCharacter } from './fixture-code';
+import { FIXTURE_CODE_ALPHABET, checkCharacter } from '$lib/domain/fixture-code';
 import { CHECK_MESSAGE, readScannedText } from './scan-text';
 
 // A valid code built with the register's own check character, and the same code with its last

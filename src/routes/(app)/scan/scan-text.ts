@@ -7,7 +7,7 @@ import {
 	FIXTURE_CODE_ALPHABET,
 	FIXTURE_CODE_BODY_LENGTH,
 	normaliseFixtureCode
-} from './fixture-code';
+} from '$lib/domain/fixture-code';
 
 /** Where the text came from: a decoder gives exact text, a person may add slips of the hand. */
 export type ScanSource = 'camera' | 'photo' | 'typed';

@@ -11,7 +11,7 @@ import {
 	sheetsNeeded,
 	type SheetLayout,
 	type SheetOptions
-} from './label-layouts';
+} from './sheet-layouts';
 
 function layoutOf(options: SheetOptions): SheetLayout {
 	const r = computeSheetLayout(options);

@@ -1,5 +1,5 @@
-import { HEAVY_LIFT_KG, type CautionKind } from '$lib/content/cautions';
-import type { FixtureType } from '$lib/schemas/fixture';
+import { HEAVY_LIFT_KG, type CautionKind } from './cautions';
+import type { FixtureType } from '$lib/domain/fixture-types';
 
 /** Fixture types whose halves close on each other when seated, so fingers can be caught. */
 const SEATING_TYPES: readonly FixtureType[] = ['three-vee', 'trihedral-vee-flat', 'pallet'];
