@@ -314,7 +314,8 @@ export async function update(
 			.update(fixtures)
 			.set({ ...fixtureValues(patch), updatedAt: now })
 			.where(eq(fixtures.id, row.id));
-		if (moved) await logMove(conn, actor, row.code, patch.locationId!, now);
+		if (moved)
+			await logMove(conn, actor, row.code, { from: row.locationId, to: patch.locationId! }, now);
 		if (FOLD_INPUTS.some((k) => patch[k] !== undefined)) await refoldOn(conn, row.id, now);
 		return { code: row.code, moved };
 	});
@@ -322,13 +323,14 @@ export async function update(
 
 /**
  * The register's move as a phone would send it (the sync schema's payload: the new location's
- * id as text), ingested inside the caller's transaction from the device "server".
+ * id as text, and where it was, which the register knows), ingested inside the caller's
+ * transaction from the device "server".
  */
 async function logMove(
 	conn: PoolConnection,
 	actor: Actor,
 	fixtureCode: string,
-	locationId: number,
+	move: { from: number; to: number },
 	now: Date
 ): Promise<void> {
 	const event = {
@@ -336,7 +338,7 @@ async function logMove(
 		fixtureCode,
 		kind: 'move',
 		occurredAt: now.toISOString(),
-		payload: { locationId: String(locationId) }
+		payload: { locationId: String(move.to), fromLocationId: String(move.from) }
 	};
 	const [result] = await ingestOn(conn, actor, SERVER_DEVICE, [event], { now });
 	if (result.status !== 'accepted') {

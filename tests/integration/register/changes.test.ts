@@ -118,7 +118,7 @@ describe('update', () => {
 			userId: sup.id,
 			deviceId: 'server',
 			// The payload a phone sends for a move (schemas/events.ts): the new location's id.
-			payload: { locationId: String(to.id) }
+			payload: { locationId: String(to.id), fromLocationId: String(from.id) }
 		});
 		expect(ev.id).toMatch(/^[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$/);
 		// Ingest's content hash (what happened, without the id), as for a phone's event.
@@ -126,7 +126,7 @@ describe('update', () => {
 			fixtureCode: f.code,
 			kind: 'move',
 			occurredAt: ev.occurredAt.toISOString(),
-			payload: { locationId: String(to.id) }
+			payload: { locationId: String(to.id), fromLocationId: String(from.id) }
 		});
 		expect(ev.contentHash).toBe(createHash('sha256').update(canonical).digest('hex'));
 		expect((await fixtures.getRecord(f.code))!.locationId).toBe(to.id);

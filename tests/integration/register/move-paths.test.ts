@@ -99,7 +99,7 @@ describe('a move made in the register and the same move sent through sync', () =
 
 		// B through sync: the same move, at the same time, from a phone.
 		const occurredAt = moveA.occurredAt.toISOString();
-		const payload = { locationId: String(to.id) };
+		const payload = { locationId: String(to.id), fromLocationId: String(from.id) };
 		const [sent] = await ingestBatch(sup, 'phone-m', [
 			{ id: randomUUID(), fixtureCode: b.code, kind: 'move', occurredAt, payload }
 		]);
