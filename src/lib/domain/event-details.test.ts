@@ -64,6 +64,9 @@ describe('eventDetails', () => {
 		expect(eventDetails('move', { fromLocationId: 3, toLocationId: 7 }, placeOf).summary).toBe(
 			'From location 3 to Larchmere / CMM lab / CMM 2'
 		);
+		expect(eventDetails('move', { locationId: '7', fromLocationId: '3' }, placeOf).summary).toBe(
+			'From location 3 to Larchmere / CMM lab / CMM 2'
+		);
 		expect(eventDetails('move', { locationId: '7' }, placeOf).summary).toBe(
 			'To Larchmere / CMM lab / CMM 2'
 		);

@@ -117,10 +117,11 @@ export function eventDetails(
 			break;
 		}
 		case 'move': {
-			// A register edit records both ends; a move logged on the phone only where it went.
+			// A register edit records both ends (older ones as from/to ids, newer ones in the phone's
+			// shape plus fromLocationId); a move logged on the phone only where it went.
 			summary =
 				p.fromLocationId !== undefined
-					? `From ${placeOf(String(p.fromLocationId))} to ${placeOf(String(p.toLocationId))}`
+					? `From ${placeOf(String(p.fromLocationId))} to ${placeOf(String(p.toLocationId ?? p.locationId))}`
 					: p.locationId !== undefined
 						? `To ${placeOf(String(p.locationId))}`
 						: 'Moved';

@@ -165,9 +165,10 @@ export const partSwapPayloadSchema = z
 		path: ['description']
 	});
 
-/** Move to another location (by id). */
+/** Move to another location (by id); a move made in the register also names where it was. */
 export const movePayloadSchema = z.strictObject({
 	locationId: text('Location', 64),
+	fromLocationId: text('Previous location', 64).optional(),
 	note: text('Note', 500).optional()
 });
 

@@ -11,7 +11,8 @@
  * - Work is done in chunks of fixtures, one transaction per chunk, locking the state rows in id
  *   order like ingest does, so a scan and a sync batch wait for each other instead of deadlocking.
  */
-import type { PoolConnection, RowDataPacket } from 'mysql2/promise';
+import type { PoolConnection } from 'mysql2/promise';
+import type { Policy } from '../domain/policy';
 import {
 	compareEvents,
 	evaluateFlags,
@@ -20,18 +21,22 @@ import {
 	type FixtureState
 } from '../domain/health';
 import type { FixtureEvent } from '../schemas/events';
-import { getPool, withConnection } from './db';
-import { canonicalJson } from './fixtures';
+import { canonicalJson } from './canonical-json';
+import { getPool } from './db';
+import {
+	selectFixturesById,
+	selectHistories,
+	selectStatedFixtureIds,
+	type Queryable
+} from './db/health-sql';
+import { inTransaction } from './db/transaction';
 import {
 	diffFlags,
 	flagRows,
-	HEALTH_FIXTURE_COLUMNS,
 	initialStateFor,
 	initialStateOptions,
 	loadStoredStates,
-	parseJson,
 	policiesFor,
-	toHealthFixture,
 	upsertStates,
 	writeFlags,
 	type HealthFixture
@@ -44,35 +49,19 @@ const CHUNK = 200;
 export const CALENDAR_FLAG_KINDS: readonly Flag['kind'][] = ['cleaning-due', 'inspection-due'];
 
 /** Fixtures by id (all of them when `ids` is omitted), in id order. */
-export async function loadHealthFixtures(ids?: number[]): Promise<HealthFixture[]> {
-	if (ids && !ids.length) return [];
-	const [rows] = await getPool().query<RowDataPacket[]>(
-		`SELECT ${HEALTH_FIXTURE_COLUMNS} FROM fixtures ${ids ? 'WHERE id IN (?)' : ''} ORDER BY id`,
-		ids ? [ids] : []
-	);
-	return rows.map(toHealthFixture);
+export function loadHealthFixtures(
+	ids?: number[],
+	q: Queryable = getPool()
+): Promise<HealthFixture[]> {
+	return selectFixturesById(q, ids);
 }
 
-/** The histories of some fixtures in folding order. */
-async function loadHistories(
-	conn: PoolConnection,
+/** The histories of some fixtures in folding order (the domain's compareEvents). */
+export async function loadHistories(
+	conn: Queryable,
 	ids: number[]
 ): Promise<Map<number, FixtureEvent[]>> {
-	const out = new Map<number, FixtureEvent[]>(ids.map((id) => [id, []]));
-	if (!ids.length) return out;
-	const [rows] = await conn.query<RowDataPacket[]>(
-		'SELECT id, fixture_id, kind, occurred_at, payload FROM events WHERE fixture_id IN (?)',
-		[ids]
-	);
-	for (const r of rows) {
-		out.get(r.fixture_id)!.push({
-			id: r.id,
-			kind: r.kind,
-			occurredAt: (r.occurred_at as Date).toISOString(),
-			payload: parseJson(r.payload)
-		} as FixtureEvent);
-	}
-	// The database's collation orders ids case-insensitively; the fold order is the domain's.
+	const out = await selectHistories(conn, ids);
 	for (const list of out.values()) list.sort(compareEvents);
 	return out;
 }
@@ -95,23 +84,12 @@ function flagChange(fixtureId: number, diff: ReturnType<typeof diffFlags>): Flag
 }
 
 /**
- * One transaction on one pooled connection. Everything inside goes through `conn`: what needs
- * the pool (fixtures, policies) is read before, so no connection is held while waiting for another.
+ * The health jobs' transactions are not retried (a job reports what it did; a conflict is rare
+ * and the next run picks it up). Everything inside goes through the transaction's connection:
+ * what needs the pool (fixtures, policies) is read before, so no connection is held while
+ * waiting for another.
  */
-function inTransaction<T>(fn: (conn: PoolConnection) => Promise<T>): Promise<T> {
-	return withConnection(async (conn) => {
-		await conn.query('SET TRANSACTION ISOLATION LEVEL READ COMMITTED');
-		await conn.beginTransaction();
-		try {
-			const out = await fn(conn);
-			await conn.commit();
-			return out;
-		} catch (err) {
-			await conn.rollback().catch(() => undefined);
-			throw err;
-		}
-	});
-}
+const ONCE = { attempts: 1 };
 
 function chunks<T>(list: T[], size = CHUNK): T[][] {
 	const out: T[][] = [];
@@ -142,21 +120,43 @@ export async function reevaluateFlags(
 	for (const chunk of chunks(ids)) {
 		const fixtures = await loadHealthFixtures(chunk);
 		const policies = await policiesFor(fixtures);
-		await inTransaction(async (conn) => {
-			const stored = await loadStoredStates(conn, chunk, true);
-			const writes = [];
-			for (const f of fixtures) {
-				const entry = stored.get(f.id);
-				if (!entry) continue;
-				const wanted = evaluateFlags(entry.state, policies.get(f.id)!, now);
-				const diff = diffFlags(entry.openFlags, wanted, options.kinds);
-				if (!diff.raise.length && !diff.update.length && !diff.clear.length) continue;
-				changes.push(flagChange(f.id, diff));
-				writes.push(...flagRows(f.id, diff, now));
-			}
-			await writeFlags(conn, writes);
-		});
+		const changed = await inTransaction(
+			(conn) => reevaluateOn(conn, fixtures, policies, { ...options, now }),
+			ONCE
+		);
+		changes.push(...changed);
 	}
+	return changes;
+}
+
+/**
+ * reevaluateFlags for some fixtures inside a transaction the caller holds, their policies already
+ * read; locks their state rows.
+ */
+export async function reevaluateOn(
+	conn: PoolConnection,
+	fixtures: HealthFixture[],
+	policies: Map<number, Policy>,
+	options: ReevaluateOptions & { now: Date }
+): Promise<FlagChange[]> {
+	const { now } = options;
+	const changes: FlagChange[] = [];
+	const stored = await loadStoredStates(
+		conn,
+		fixtures.map((f) => f.id),
+		true
+	);
+	const writes = [];
+	for (const f of fixtures) {
+		const entry = stored.get(f.id);
+		if (!entry) continue;
+		const wanted = evaluateFlags(entry.state, policies.get(f.id)!, now);
+		const diff = diffFlags(entry.openFlags, wanted, options.kinds);
+		if (!diff.raise.length && !diff.update.length && !diff.clear.length) continue;
+		changes.push(flagChange(f.id, diff));
+		writes.push(...flagRows(f.id, diff, now));
+	}
+	await writeFlags(conn, writes);
 	return changes;
 }
 
@@ -168,13 +168,7 @@ export async function evaluateDueFlags(
 	now: Date = new Date(),
 	fixtureIds?: number[]
 ): Promise<FlagChange[]> {
-	let ids = fixtureIds;
-	if (!ids) {
-		const [rows] = await getPool().query<RowDataPacket[]>(
-			'SELECT fixture_id FROM fixture_state ORDER BY fixture_id'
-		);
-		ids = rows.map((r) => r.fixture_id as number);
-	}
+	const ids = fixtureIds ?? (await selectStatedFixtureIds(getPool()));
 	return reevaluateFlags(ids, { now, kinds: CALENDAR_FLAG_KINDS });
 }
 
@@ -214,41 +208,73 @@ export async function rebuildStates(
 	options: { fix?: boolean; now?: Date; ids?: number[] } = {}
 ): Promise<RebuildReport> {
 	const now = options.now ?? new Date();
+	const fix = !!options.fix;
 	const all = await loadHealthFixtures(options.ids);
-	const report: RebuildReport = { checked: 0, differing: [], fixed: !!options.fix };
+	const report: RebuildReport = { checked: 0, differing: [], fixed: fix };
 	for (const fixtures of chunks(all)) {
 		const policies = await policiesFor(fixtures);
-		const ids = fixtures.map((f) => f.id);
-		await inTransaction(async (conn) => {
-			const stored = await loadStoredStates(conn, ids, !!options.fix);
-			const histories = await loadHistories(conn, ids);
-			const toWrite: { f: HealthFixture; state: FixtureState }[] = [];
-			for (const f of fixtures) {
-				const history = histories.get(f.id)!;
-				const state = stored.get(f.id)?.state ?? null;
-				report.checked++;
-				// No events and no state: nothing was ever folded, nothing to compare.
-				if (!history.length && !state) continue;
-				const rebuilt = history.length
-					? recompute(history, policies.get(f.id)!, initialStateOptions(f))
-					: initialStateFor(f);
-				const fields = state ? differingFields(state, rebuilt) : ['(no stored state)'];
-				if (!fields.length) continue;
-				report.differing.push({ fixtureId: f.id, code: f.code, fields });
-				toWrite.push({ f, state: rebuilt });
-			}
-			if (!options.fix || !toWrite.length) return;
-			await upsertStates(
-				conn,
-				toWrite.map(({ f, state }) => ({ fixtureId: f.id, state })),
-				now
-			);
-			const writes = toWrite.flatMap(({ f, state }) => {
-				const wanted = evaluateFlags(state, policies.get(f.id)!, now);
-				return flagRows(f.id, diffFlags(stored.get(f.id)?.openFlags ?? [], wanted), now);
-			});
-			await writeFlags(conn, writes);
-		});
+		const differing = await inTransaction(
+			(conn) => rebuildOn(conn, fixtures, policies, { fix, now }),
+			ONCE
+		);
+		report.checked += fixtures.length;
+		report.differing.push(...differing);
 	}
 	return report;
+}
+
+/**
+ * rebuildStates for some fixtures inside a transaction the caller holds, their policies already
+ * read. Returns the fixtures whose stored state differed (and, with fix, was rewritten with
+ * their flags re-evaluated).
+ */
+export async function rebuildOn(
+	conn: PoolConnection,
+	fixtures: HealthFixture[],
+	policies: Map<number, Policy>,
+	options: { fix: boolean; now: Date }
+): Promise<StateDifference[]> {
+	const { fix, now } = options;
+	const ids = fixtures.map((f) => f.id);
+	const stored = await loadStoredStates(conn, ids, fix);
+	const histories = await loadHistories(conn, ids);
+	const differing: StateDifference[] = [];
+	const toWrite: { f: HealthFixture; state: FixtureState }[] = [];
+	for (const f of fixtures) {
+		const history = histories.get(f.id)!;
+		const state = stored.get(f.id)?.state ?? null;
+		// No events and no state: nothing was ever folded, nothing to compare.
+		if (!history.length && !state) continue;
+		const rebuilt = history.length
+			? recompute(history, policies.get(f.id)!, initialStateOptions(f))
+			: initialStateFor(f);
+		const fields = state ? differingFields(state, rebuilt) : ['(no stored state)'];
+		if (!fields.length) continue;
+		differing.push({ fixtureId: f.id, code: f.code, fields });
+		toWrite.push({ f, state: rebuilt });
+	}
+	if (!fix || !toWrite.length) return differing;
+	await upsertStates(
+		conn,
+		toWrite.map(({ f, state }) => ({ fixtureId: f.id, state })),
+		now
+	);
+	const writes = toWrite.flatMap(({ f, state }) => {
+		const wanted = evaluateFlags(state, policies.get(f.id)!, now);
+		return flagRows(f.id, diffFlags(stored.get(f.id)?.openFlags ?? [], wanted), now);
+	});
+	await writeFlags(conn, writes);
+	return differing;
+}
+
+/**
+ * Refolds one fixture's state from its whole history and re-evaluates its flags, inside a
+ * transaction the caller holds (a register change to what the fold or the policy depends on).
+ * Reads the fixture and its policy through `conn`, so it sees the caller's uncommitted change.
+ */
+export async function refoldOn(conn: PoolConnection, fixtureId: number, now: Date): Promise<void> {
+	const fixtures = await loadHealthFixtures([fixtureId], conn);
+	const policies = await policiesFor(fixtures, conn);
+	await rebuildOn(conn, fixtures, policies, { fix: true, now });
+	await reevaluateOn(conn, fixtures, policies, { now });
 }

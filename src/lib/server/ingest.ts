@@ -33,20 +33,13 @@
  *   it, so any number of concurrent batches drain through the pool instead of waiting on each
  *   other (see db/pool.ts).
  * - Speed. A handful of statements per batch, not per event: one lookup of the fixtures, one of
- *   their policies, one of the existing ids, one locking read of the states, one multi-row insert of the events, one read
- *   of the open flags, one multi-row upsert of the states and one of the flags.
+ *   their policies, one of the existing ids, one locking read of the states with their open flags,
+ *   one multi-row insert of the events, one multi-row upsert of the states and one of the flags
+ *   (the statements are in db/health-sql.ts; the fold step in ingest-fold.ts).
  */
 import { createHash } from 'node:crypto';
-import type { PoolConnection, RowDataPacket } from 'mysql2/promise';
+import type { PoolConnection } from 'mysql2/promise';
 import { normaliseFixtureCode } from '../domain/fixture-code';
-import {
-	applyEvent,
-	compareEvents,
-	evaluateFlags,
-	recompute,
-	type Flag,
-	type FixtureState
-} from '../domain/health';
 import type { Policy } from '../domain/policy';
 import {
 	EVENT_KINDS_BY_ROLE,
@@ -55,28 +48,26 @@ import {
 	parseSyncEvent,
 	syncRequestSchema,
 	type EventKind,
-	type FixtureEvent,
 	type SyncEvent
 } from '../schemas/events';
 import { ROLES, type Role } from '../schemas/roles';
+import { canonicalJson } from './canonical-json';
 import { withConnection } from './db';
-import { canonicalJson } from './fixtures';
+import { selectFixturesByCode } from './db/health-sql';
+import { errnoOf, isLockConflict, transactionOn } from './db/transaction';
 import type { Actor } from './guard';
+import { foldNewEvents, lockStates } from './ingest-fold';
 import {
-	diffFlags,
-	flagRows,
-	HEALTH_FIXTURE_COLUMNS,
-	initialStateFor,
-	initialStateOptions,
-	loadStoredStates,
-	parseJson,
-	policiesFor,
-	toHealthFixture,
-	upsertStates,
-	writeFlags,
-	type FlagRow,
-	type HealthFixture
-} from './state-store';
+	CLASH,
+	ER_DUP_ENTRY,
+	insertNew,
+	judgeStored,
+	storedHashes,
+	type Item,
+	type Sender,
+	type SyncResult
+} from './ingest-insert';
+import { policiesFor } from './state-store';
 
 /** Largest sync request body accepted (declared and actually read). */
 export const SYNC_BODY_LIMIT_BYTES = 2 * 1024 * 1024;
@@ -87,12 +78,7 @@ const TRANSACTION_ATTEMPTS = 4;
 
 export { MAX_EVENTS_PER_SYNC };
 
-/** The answer for one event of a batch. */
-export interface SyncResult {
-	id: string;
-	status: 'accepted' | 'duplicate' | 'rejected';
-	error?: string;
-}
+export type { SyncResult };
 
 /** Options of ingestBatch. */
 export interface IngestOptions {
@@ -197,27 +183,6 @@ export function contentHash(e: Pick<SyncEvent, 'fixtureCode' | 'kind' | 'occurre
 	return createHash('sha256').update(canonical).digest('hex');
 }
 
-/** What ingest needs to know about a fixture. */
-type FixtureRow = HealthFixture;
-
-/** One event of the batch on its way through ingest. */
-interface Item {
-	index: number;
-	/** The id as the phone sent it, echoed in the result. */
-	sentId: string;
-	/**
-	 * The id in lower case, as stored: the column compares ids without regard to case, so one
-	 * spelling must be chosen for the fold order to match a rebuild.
-	 */
-	id: string;
-	event?: SyncEvent;
-	hash?: string;
-	fixture?: FixtureRow;
-	/** First event of the batch with the same id, when this one repeats it. */
-	repeatOf?: Item;
-	result?: SyncResult;
-}
-
 /* ------------------------------------------------------------------------------------------ */
 /* The batch                                                                                  */
 
@@ -232,7 +197,46 @@ export async function ingestBatch(
 	rawEvents: readonly unknown[],
 	options: IngestOptions = {}
 ): Promise<SyncResult[]> {
-	const now = options.now ?? new Date();
+	const sender = { actor, deviceId, now: options.now ?? new Date() };
+	const items = toItems(rawEvents);
+	// One connection for the whole batch, and everything the batch reads goes through it: the
+	// fixtures, their policies, the transaction. Asking the pool for a second connection while
+	// holding this one wedged the server once every connection was held by a batch doing so.
+	await withConnection(async (conn) => {
+		const policies = await prepare(conn, items);
+		await transactionOn(conn, () => judgeAndStore(conn, sender, items, policies), {
+			attempts: TRANSACTION_ATTEMPTS,
+			retryable: isRetryable,
+			// Forget this attempt's verdicts on the new events and judge them again.
+			beforeRetry: () => {
+				for (const item of items) if (item.event) item.result = undefined;
+			}
+		});
+	});
+	return items.map((item) => item.result!);
+}
+
+/**
+ * The same ingest inside a transaction the caller holds on `conn` (the register's move, written
+ * in the same transaction as the fixture's change): same judging, content hash, fold and flag
+ * diff as a phone's batch. Not retried here; the caller's transaction is.
+ */
+export async function ingestOn(
+	conn: PoolConnection,
+	actor: Actor,
+	deviceId: string,
+	rawEvents: readonly unknown[],
+	options: IngestOptions = {}
+): Promise<SyncResult[]> {
+	const sender = { actor, deviceId, now: options.now ?? new Date() };
+	const items = toItems(rawEvents);
+	const policies = await prepare(conn, items);
+	await judgeAndStore(conn, sender, items, policies);
+	return items.map((item) => item.result!);
+}
+
+/** Parses each event; a repeated id inside the batch follows the first with that id. */
+function toItems(rawEvents: readonly unknown[]): Item[] {
 	const items: Item[] = rawEvents.map((raw, index) => {
 		const parsed = parseSyncEvent(raw);
 		if (!parsed.ok) {
@@ -247,8 +251,6 @@ export async function ingestBatch(
 		const id = parsed.event.id.toLowerCase();
 		return { index, sentId: parsed.event.id, id, event: { ...parsed.event, id } };
 	});
-
-	// A repeated id inside the batch: the first is judged, the later ones follow it.
 	const firstById = new Map<string, Item>();
 	for (const item of items) {
 		if (!item.event) continue;
@@ -256,64 +258,35 @@ export async function ingestBatch(
 		if (first) item.repeatOf = first;
 		else firstById.set(item.id, item);
 	}
-
-	// One connection for the whole batch, and everything the batch reads goes through it: the
-	// fixtures, their policies, the transaction. Asking the pool for a second connection while
-	// holding this one wedged the server once every connection was held by a batch doing so.
-	await withConnection(async (conn) => {
-		const fixtures = await lookUpFixtures(conn, items);
-		for (const item of items) {
-			if (!item.event) continue;
-			const reading = normaliseFixtureCode(item.event.fixtureCode);
-			item.fixture = reading.ok ? fixtures.get(reading.code) : undefined;
-			// The canonical code when it is known, so "nm-4k7qx" and "NM-4K7QX" hash alike.
-			const code = item.fixture?.code ?? item.event.fixtureCode;
-			item.hash = contentHash({ ...item.event, fixtureCode: code });
-		}
-		const policies = await policiesFor(
-			new Set(items.filter((i) => i.fixture && !i.repeatOf).map((i) => i.fixture!)),
-			conn
-		);
-
-		for (let attempt = 1; ; attempt++) {
-			try {
-				await writeBatch(conn, actor, deviceId, items, policies, now);
-				break;
-			} catch (err) {
-				if (attempt >= TRANSACTION_ATTEMPTS || !isRetryable(err)) throw err;
-				// Forget this attempt's verdicts on the new events and judge them again.
-				for (const item of items) if (item.event) item.result = undefined;
-			}
-		}
-	});
-
-	return items.map((item) => item.result!);
+	return items;
 }
 
-function isRetryable(err: unknown): boolean {
-	const errno = (err as { errno?: number }).errno;
-	// 1213 deadlock, 1205 lock wait timeout, 1062 an id inserted by a concurrent batch.
-	return errno === 1213 || errno === 1205 || errno === 1062;
-}
-
-async function lookUpFixtures(
-	conn: PoolConnection,
-	items: Item[]
-): Promise<Map<string, FixtureRow>> {
+/** Finds each event's fixture, hashes its content and reads the fixtures' policies. */
+async function prepare(conn: PoolConnection, items: Item[]): Promise<Map<number, Policy>> {
 	const codes = new Set<string>();
 	for (const item of items) {
 		if (!item.event) continue;
 		const reading = normaliseFixtureCode(item.event.fixtureCode);
 		if (reading.ok) codes.add(reading.code);
 	}
-	const map = new Map<string, FixtureRow>();
-	if (!codes.size) return map;
-	const [rows] = await conn.query<RowDataPacket[]>(
-		`SELECT ${HEALTH_FIXTURE_COLUMNS} FROM fixtures WHERE code IN (?)`,
-		[[...codes]]
+	const fixtures = new Map((await selectFixturesByCode(conn, [...codes])).map((f) => [f.code, f]));
+	for (const item of items) {
+		if (!item.event) continue;
+		const reading = normaliseFixtureCode(item.event.fixtureCode);
+		item.fixture = reading.ok ? fixtures.get(reading.code) : undefined;
+		// The canonical code when it is known, so "nm-4k7qx" and "NM-4K7QX" hash alike.
+		const code = item.fixture?.code ?? item.event.fixtureCode;
+		item.hash = contentHash({ ...item.event, fixtureCode: code });
+	}
+	return policiesFor(
+		new Set(items.filter((i) => i.fixture && !i.repeatOf).map((i) => i.fixture!)),
+		conn
 	);
-	for (const r of rows) map.set(r.code, toHealthFixture(r));
-	return map;
+}
+
+function isRetryable(err: unknown): boolean {
+	// A deadlock, a lock wait timeout, or (1062) an id inserted by a concurrent batch.
+	return isLockConflict(err) || errnoOf(err) === ER_DUP_ENTRY;
 }
 
 /** Judges an event that is not stored yet; undefined when it may be accepted. */
@@ -333,333 +306,71 @@ function refusal(item: Item, actor: Actor, now: Date): string | undefined {
 	return undefined;
 }
 
-/** MariaDB: duplicate entry for a unique key. */
-const ER_DUP_ENTRY = 1062;
-
-const CLASH = 'An event with this id already exists with different content; it was not changed.';
-
-/** The transaction: judge, insert, fold, flag, upsert. */
-async function writeBatch(
+/** Inside the transaction: judge, insert, fold, flag, upsert. */
+async function judgeAndStore(
 	conn: PoolConnection,
-	actor: Actor,
-	deviceId: string,
+	sender: Sender,
 	items: Item[],
-	policies: Map<number, Policy>,
-	now: Date
+	policies: Map<number, Policy>
 ): Promise<void> {
-	await conn.query('SET TRANSACTION ISOLATION LEVEL READ COMMITTED');
-	await conn.beginTransaction();
-	try {
-		const firsts = items.filter((i) => i.event && !i.repeatOf);
-		const candidates: Item[] = [];
-		const refused: { item: Item; why: string }[] = [];
-		for (const item of firsts) {
-			const why = refusal(item, actor, now);
-			if (why) refused.push({ item, why });
-			else candidates.push(item);
-		}
-
-		// A refused event may still be one stored earlier (re-sent after another person signed in
-		// on the phone, or after its fixture was renamed): then it is a duplicate, not a refusal.
-		const storedRefused = await storedHashes(
+	const candidates = await judgeNew(conn, sender, items);
+	if (candidates.length) {
+		const locked = await lockStates(
 			conn,
-			refused.map((r) => r.item)
+			candidates.map((i) => i.fixture!),
+			sender.now
 		);
-		for (const { item, why } of refused) {
-			item.result = judgeStored(item, storedRefused) ?? {
-				id: item.sentId,
-				status: 'rejected',
-				error: why
-			};
-		}
-
-		if (candidates.length) await storeAndFold(conn, actor, deviceId, candidates, policies, now);
-
-		for (const item of items) {
-			const first = item.repeatOf;
-			if (!first) continue;
-			const same = first.hash === item.hash;
-			if (first.result!.status === 'rejected') {
-				item.result = {
-					id: item.sentId,
-					status: 'rejected',
-					error: same ? first.result!.error : 'Another event in this batch has the same id.'
-				};
-			} else {
-				item.result = same
-					? { id: item.sentId, status: 'duplicate' }
-					: { id: item.sentId, status: 'rejected', error: CLASH };
-			}
-		}
-		await conn.commit();
-	} catch (err) {
-		await conn.rollback().catch(() => undefined);
-		throw err;
+		const fresh = await insertNew(conn, sender, candidates);
+		const newEvents = fresh.map((i) => ({ event: i.event!, fixture: i.fixture! }));
+		if (fresh.length) await foldNewEvents(conn, newEvents, locked, policies, sender.now);
 	}
+	judgeRepeats(items);
 }
 
-/** Content hashes of those of `items` already stored, by (lower-case) id. */
-async function storedHashes(conn: PoolConnection, items: Item[]): Promise<Map<string, string>> {
-	const stored = new Map<string, string>();
-	if (!items.length) return stored;
-	const [rows] = await conn.query<RowDataPacket[]>(
-		'SELECT id, content_hash FROM events WHERE id IN (?)',
-		[items.map((i) => i.id)]
+/**
+ * Answers the refused first events of each id (a refused event may still be one stored earlier:
+ * re-sent after another person signed in on the phone, or after its fixture was renamed; then it
+ * is a duplicate, not a refusal) and returns the rest, which may be stored.
+ */
+async function judgeNew(conn: PoolConnection, sender: Sender, items: Item[]): Promise<Item[]> {
+	const candidates: Item[] = [];
+	const refused: { item: Item; why: string }[] = [];
+	for (const item of items) {
+		if (!item.event || item.repeatOf) continue;
+		const why = refusal(item, sender.actor, sender.now);
+		if (why) refused.push({ item, why });
+		else candidates.push(item);
+	}
+	const stored = await storedHashes(
+		conn,
+		refused.map((r) => r.item)
 	);
-	for (const r of rows) stored.set(String(r.id).toLowerCase(), r.content_hash);
-	return stored;
-}
-
-/** Duplicate or clash when the id is stored; undefined when it is not. */
-function judgeStored(item: Item, stored: Map<string, string>): SyncResult | undefined {
-	const hash = stored.get(item.id);
-	if (hash === undefined) return undefined;
-	return hash === item.hash
-		? { id: item.sentId, status: 'duplicate' }
-		: { id: item.sentId, status: 'rejected', error: CLASH };
-}
-
-const INSERT_EVENTS = `INSERT INTO events
-	(id, fixture_id, kind, occurred_at, received_at, user_id, device_id, payload, content_hash)
-	VALUES ?`;
-
-/**
- * Inserts the candidates and returns those that were new. Optimistic: most batches are sent
- * once, so they are inserted straight away; only when the primary key says some id is already
- * there (a retry, or another phone's batch that just committed) are the stored ids looked up and
- * the rest inserted. A failed statement is undone on its own; the transaction goes on.
- */
-async function insertNew(
-	conn: PoolConnection,
-	actor: Actor,
-	deviceId: string,
-	candidates: Item[],
-	now: Date
-): Promise<Item[]> {
-	const rows = (list: Item[]) =>
-		list.map((item) => {
-			const e = item.event!;
-			return [
-				e.id,
-				item.fixture!.id,
-				e.kind,
-				new Date(e.occurredAt),
-				now,
-				actor.id,
-				deviceId,
-				JSON.stringify(e.payload),
-				item.hash
-			];
-		});
-	try {
-		await conn.query(INSERT_EVENTS, [rows(candidates)]);
-		for (const item of candidates) item.result = { id: item.sentId, status: 'accepted' };
-		return candidates;
-	} catch (err) {
-		const errno = (err as { errno?: number }).errno;
-		// The schemas refuse what the database cannot store; should something still slip past
-		// them, it costs that one event, never the batch.
-		if (errno !== undefined && DATA_ERRORS.has(errno)) {
-			return insertOneByOne(conn, candidates, (item) => rows([item]));
-		}
-		if (errno !== ER_DUP_ENTRY) throw err;
+	for (const { item, why } of refused) {
+		item.result = judgeStored(item, stored) ?? {
+			id: item.sentId,
+			status: 'rejected',
+			error: why
+		};
 	}
-	const stored = await storedHashes(conn, candidates);
-	const fresh: Item[] = [];
-	for (const item of candidates) {
-		const known = judgeStored(item, stored);
-		if (known) item.result = known;
-		else {
-			item.result = { id: item.sentId, status: 'accepted' };
-			fresh.push(item);
-		}
-	}
-	// Another duplicate here means a third batch raced this one: the whole batch is retried.
-	if (fresh.length) await conn.query(INSERT_EVENTS, [rows(fresh)]);
-	return fresh;
+	return candidates;
 }
 
-/**
- * MariaDB errors that say a value cannot be stored (a CHECK such as json_valid, a string the
- * column's character set refuses, too long, out of range, a bad date) rather than that the
- * database is in trouble.
- */
-const DATA_ERRORS = new Set([4025, 3140, 1366, 1406, 1264, 1292, 1367]);
-
-/**
- * The slow path of insertNew: one statement per event, so an event the database refuses is
- * rejected alone (a failed statement is undone on its own; the transaction goes on).
- */
-async function insertOneByOne(
-	conn: PoolConnection,
-	candidates: Item[],
-	row: (item: Item) => unknown[][]
-): Promise<Item[]> {
-	const stored = await storedHashes(conn, candidates);
-	const fresh: Item[] = [];
-	for (const item of candidates) {
-		const known = judgeStored(item, stored);
-		if (known) {
-			item.result = known;
-			continue;
-		}
-		try {
-			await conn.query(INSERT_EVENTS, [row(item)]);
-		} catch (err) {
-			const errno = (err as { errno?: number }).errno;
-			if (errno === undefined || !DATA_ERRORS.has(errno)) throw err;
+/** A repeated id inside the batch gets its first's answer: duplicate, or a clash or refusal. */
+function judgeRepeats(items: Item[]): void {
+	for (const item of items) {
+		const first = item.repeatOf;
+		if (!first) continue;
+		const same = first.hash === item.hash;
+		if (first.result!.status === 'rejected') {
 			item.result = {
 				id: item.sentId,
 				status: 'rejected',
-				error:
-					'The database could not store this event (a value it cannot hold); check its text and numbers.'
+				error: same ? first.result!.error : 'Another event in this batch has the same id.'
 			};
-			continue;
-		}
-		item.result = { id: item.sentId, status: 'accepted' };
-		fresh.push(item);
-	}
-	return fresh;
-}
-
-interface StateRow {
-	state: FixtureState;
-	before: FixtureState;
-	recompute: boolean;
-	newEvents: Item[];
-	fixture: FixtureRow;
-}
-
-async function storeAndFold(
-	conn: PoolConnection,
-	actor: Actor,
-	deviceId: string,
-	candidates: Item[],
-	policies: Map<number, Policy>,
-	now: Date
-): Promise<void> {
-	const lockIds = [...new Set(candidates.map((i) => i.fixture!.id))].sort((a, b) => a - b);
-
-	// Lock the states first, in id order; a fixture without a state row gets one, then the lock.
-	const locked = await loadStoredStates(conn, lockIds, true);
-	const missing = lockIds.filter((id) => !locked.has(id));
-	if (missing.length) {
-		const fixtureOf = new Map(candidates.map((i) => [i.fixture!.id, i.fixture!]));
-		await conn.query('INSERT IGNORE INTO fixture_state (fixture_id, data, updated_at) VALUES ?', [
-			missing.map((id) => [id, JSON.stringify(initialStateFor(fixtureOf.get(id)!)), now])
-		]);
-		for (const [id, entry] of await loadStoredStates(conn, missing, true)) locked.set(id, entry);
-	}
-
-	const fresh = await insertNew(conn, actor, deviceId, candidates, now);
-	if (!fresh.length) return;
-
-	const byFixture = new Map<number, StateRow>();
-	for (const item of fresh) {
-		const f = item.fixture!;
-		let row = byFixture.get(f.id);
-		if (!row) {
-			const current = locked.get(f.id)!.state;
-			row = { state: current, before: current, recompute: false, newEvents: [], fixture: f };
-			byFixture.set(f.id, row);
-		}
-		row.newEvents.push(item);
-	}
-	const fixtureIds = [...byFixture.keys()].sort((a, b) => a - b);
-	const flagWrites: FlagRow[] = [];
-
-	for (const id of fixtureIds) {
-		const row = byFixture.get(id)!;
-		const policy = policies.get(id)!;
-		const current = row.before;
-		const events = row.newEvents.map((i) => toFixtureEvent(i.event!)).sort(compareEvents);
-		const last =
-			current.lastEventAt && current.lastEventId
-				? { occurredAt: current.lastEventAt, id: current.lastEventId }
-				: null;
-		row.recompute = last !== null && compareEvents(events[0], last) <= 0;
-
-		// The state after each new event (incremental case), to find which event changed a flag.
-		let trail: FixtureState[] | null = null;
-		if (row.recompute) {
-			const history = await loadHistory(conn, id);
-			row.state = recompute(history, policy, initialStateOptions(row.fixture));
 		} else {
-			trail = [current];
-			for (const ev of events) trail.push(applyEvent(trail[trail.length - 1], ev, policy));
-			row.state = trail[trail.length - 1];
+			item.result = same
+				? { id: item.sentId, status: 'duplicate' }
+				: { id: item.sentId, status: 'rejected', error: CLASH };
 		}
-
-		const final = evaluateFlags(row.state, policy, now);
-		const kindsAfter = new Map<number, Set<Flag['kind']>>();
-		const kindsAt = (k: number) => {
-			let kinds = kindsAfter.get(k);
-			if (!kinds) {
-				kinds = new Set(evaluateFlags(trail![k], policy, now).map((f) => f.kind));
-				kindsAfter.set(k, kinds);
-			}
-			return kinds;
-		};
-		/** The new event after which `kind` was first present (or absent), by bisection. */
-		const culprit = (kind: Flag['kind'], present: boolean): string => {
-			if (!trail) return events[events.length - 1].id;
-			let lo = 1;
-			let hi = events.length;
-			while (lo < hi) {
-				const mid = (lo + hi) >> 1;
-				if (kindsAt(mid).has(kind) === present) hi = mid;
-				else lo = mid + 1;
-			}
-			return events[lo - 1].id;
-		};
-
-		const diff = diffFlags(locked.get(id)!.openFlags, final);
-		flagWrites.push(...flagRows(id, diff, now, culprit));
 	}
-
-	await upsertStates(
-		conn,
-		[...byFixture.values()].map((r) => ({ fixtureId: r.fixture.id, state: r.state })),
-		now
-	);
-	await writeFlags(conn, flagWrites);
-	await syncFixtureStatus(conn, [...byFixture.values()]);
-}
-
-function toFixtureEvent(e: SyncEvent): FixtureEvent {
-	return { id: e.id, kind: e.kind, occurredAt: e.occurredAt, payload: e.payload } as FixtureEvent;
-}
-
-/** A fixture's whole history in folding order (this transaction's inserts included). */
-async function loadHistory(conn: PoolConnection, fixtureId: number): Promise<FixtureEvent[]> {
-	const [rows] = await conn.query<RowDataPacket[]>(
-		'SELECT id, kind, occurred_at, payload FROM events WHERE fixture_id = ? ORDER BY occurred_at, id',
-		[fixtureId]
-	);
-	const events = rows.map(
-		(r) =>
-			({
-				id: r.id,
-				kind: r.kind,
-				occurredAt: (r.occurred_at as Date).toISOString(),
-				payload: parseJson(r.payload)
-			}) as FixtureEvent
-	);
-	// The database's collation orders ids case-insensitively; the fold order is the domain's.
-	return events.sort(compareEvents);
-}
-
-/**
- * Keeps the register's status in step when the state's status changed in this batch (a hold, a
- * release, a break-in begun or completed). Retired fixtures stay retired, and a status set by hand
- * in the register stands until the next change comes from the log.
- */
-async function syncFixtureStatus(conn: PoolConnection, rows: StateRow[]): Promise<void> {
-	const changed = rows.filter((r) => r.state.status !== r.before.status);
-	if (!changed.length) return;
-	const cases = changed.map(() => 'WHEN ? THEN ?').join(' ');
-	await conn.query(
-		`UPDATE fixtures SET status = CASE id ${cases} END WHERE id IN (?) AND status <> 'retired'`,
-		[...changed.flatMap((r) => [r.fixture.id, r.state.status]), changed.map((r) => r.fixture.id)]
-	);
 }

@@ -3,6 +3,7 @@ import { createHash, randomUUID } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { generateFixtureCode, isValidFixtureCode, seededRandom } from '$lib/domain/fixture-code';
 import { fixtureCreateSchema } from '$lib/schemas/fixture-form';
+import { canonicalJson } from '$lib/server/canonical-json';
 import * as fixtures from '$lib/server/fixtures';
 import { ForbiddenError } from '$lib/server/guard';
 import { rebuildStates } from '$lib/server/health';
@@ -116,15 +117,16 @@ describe('update', () => {
 			kind: 'move',
 			userId: sup.id,
 			deviceId: 'server',
-			payload: { fromLocationId: from.id, toLocationId: to.id }
+			// The payload a phone sends for a move (schemas/events.ts): the new location's id.
+			payload: { locationId: String(to.id), fromLocationId: String(from.id) }
 		});
 		expect(ev.id).toMatch(/^[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$/);
-		const canonical = fixtures.canonicalJson({
-			id: ev.id,
+		// Ingest's content hash (what happened, without the id), as for a phone's event.
+		const canonical = canonicalJson({
 			fixtureCode: f.code,
 			kind: 'move',
 			occurredAt: ev.occurredAt.toISOString(),
-			payload: { toLocationId: to.id, fromLocationId: from.id }
+			payload: { locationId: String(to.id), fromLocationId: String(from.id) }
 		});
 		expect(ev.contentHash).toBe(createHash('sha256').update(canonical).digest('hex'));
 		expect((await fixtures.getRecord(f.code))!.locationId).toBe(to.id);
