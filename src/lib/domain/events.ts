@@ -70,7 +70,8 @@ export interface EventPayloadInputs {
 	};
 	'break-in': { cycles: number; readings?: EventReading[]; note?: string };
 	'part-swap': { replaced: SwappablePart[]; description?: string; note?: string };
-	move: { locationId: string; note?: string };
+	/** A move made in the register also names where the fixture was. */
+	move: { locationId: string; fromLocationId?: string; note?: string };
 	hold: { reason: string };
 	release: { note?: string };
 	note: { text: string };
