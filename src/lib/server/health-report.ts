@@ -12,6 +12,7 @@ import { breakInCurve, type BreakInCurve, type CurveReading } from '../domain/br
 import { normaliseFixtureCode } from '../domain/fixture-code';
 import type { FlagsQuery } from '../schemas/flags-query';
 import { db, getPool, schema } from './db';
+import { scanOnRead } from './due-scan';
 import { loadHealthFixtures } from './health';
 import { initialStateFor, policiesFor } from './state-store';
 
@@ -34,8 +35,17 @@ export interface OpenFlagRow {
 	location: { id: number; name: string; area: { id: number; name: string } };
 }
 
+/** Whether a read first brings calendar flags up to date (they fall due without any event). */
+export interface ReadOptions {
+	dueScan?: boolean;
+}
+
 /** Open flags, newest first, optionally of one kind or in one area. */
-export async function openFlags(query: FlagsQuery): Promise<OpenFlagRow[]> {
+export async function openFlags(
+	query: FlagsQuery,
+	{ dueScan = false }: ReadOptions = {}
+): Promise<OpenFlagRow[]> {
+	if (dueScan) await scanOnRead();
 	const f = schema.flags;
 	const fx = schema.fixtures;
 	const rows = await db
@@ -263,7 +273,10 @@ function trendLines(windows: { cycle: number; R: number }[], spec: number): Tren
 }
 
 /** One fixture's health, or null when there is no such code. */
-export async function fixtureHealth(code: string): Promise<FixtureHealth | null> {
+export async function fixtureHealth(
+	code: string,
+	{ dueScan = false }: ReadOptions = {}
+): Promise<FixtureHealth | null> {
 	const reading = normaliseFixtureCode(code);
 	if (!reading.ok) return null;
 	const [row] = await db
@@ -272,6 +285,7 @@ export async function fixtureHealth(code: string): Promise<FixtureHealth | null>
 		.where(eq(schema.fixtures.code, reading.code))
 		.limit(1);
 	if (!row) return null;
+	if (dueScan) await scanOnRead(row.id);
 	const [fixture] = await loadHealthFixtures([row.id]);
 	const policy = (await policiesFor([fixture])).get(fixture.id)!;
 
