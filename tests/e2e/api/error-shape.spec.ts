@@ -78,8 +78,10 @@ test('404: nothing there answers { error }', async ({ browser }) => {
 });
 
 test('400: bad input answers { error, fields } with a list of messages per field', async ({
-	browser
+	browser,
+	baseURL
 }) => {
+	const appUrl = baseURL!;
 	const supervisor = await signedIn(browser, 'supervisor');
 	const nowhere = await unusedCode();
 
@@ -111,7 +113,11 @@ test('400: bad input answers { error, fields } with a list of messages per field
 	await refusal(await supervisor.get('/api/labels.pdf?all=1&layout=huge&startAt=0'), 400, true);
 	await refusal(await supervisor.post('/api/sync', { data: { events: 'none' } }), 400, true);
 	await refusal(
-		await supervisor.put('/api/attachments/not-a-uuid', { multipart: { fixtureCode: 'x' } }),
+		// A form post must name the app's own origin (SvelteKit refuses cross-site forms with 403).
+		await supervisor.put('/api/attachments/not-a-uuid', {
+			headers: { origin: new URL(appUrl).origin },
+			multipart: { fixtureCode: 'x' }
+		}),
 		400,
 		true
 	);
