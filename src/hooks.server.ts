@@ -7,10 +7,12 @@ import {
 	type ServerInit
 } from '@sveltejs/kit';
 import { building } from '$app/environment';
+import { env } from '$env/dynamic/private';
 import { sequence } from '@sveltejs/kit/hooks';
 import type { Role } from '$lib/schemas/roles';
 import { apiJsonErrors, decodedPath, under } from '$lib/server/api-answers';
 import { authHandle, type SessionWithId } from '$lib/server/auth';
+import { config, configure } from '$lib/server/config';
 import { startDueScan } from '$lib/server/due-scan';
 import { formBodyCheck } from '$lib/server/form-body';
 import { hasRole } from '$lib/server/guard';
@@ -34,7 +36,7 @@ const ROLE_AREAS: { prefix: string; roles: readonly Role[] }[] = [
 
 /** One line per request: method, path, status, time. Off with NESTMARK_REQUEST_LOG=off. */
 const requestLog: Handle = async ({ event, resolve }) => {
-	if (process.env.NESTMARK_REQUEST_LOG === 'off') return resolve(event);
+	if (!config().requestLog) return resolve(event);
 	const started = performance.now();
 	const response = await resolve(event);
 	const ms = (performance.now() - started).toFixed(0);
@@ -134,7 +136,12 @@ export const handleError: HandleServerError = ({ error, event, status, message }
 	return { message };
 };
 
-/** Starts the calendar scan (cleaning and inspection due by days) once per server process. */
+/**
+ * Checks the environment once, at start (a bad or missing variable stops the server with a
+ * message naming it), then starts the calendar scan (cleaning and inspection due by days).
+ */
 export const init: ServerInit = () => {
-	if (!building) startDueScan();
+	if (building) return;
+	configure(env);
+	startDueScan();
 };

@@ -1,6 +1,6 @@
 import { error, json, text } from '@sveltejs/kit';
 import { describe, expect, it, vi } from 'vitest';
-import { apiJsonErrors, decodedPath, isApiPath } from './api-answers';
+import { apiError, apiJsonErrors, decodedPath, isApiPath } from './api-answers';
 
 // The handle with a request and a stand-in for what SvelteKit's resolve answers; the built app is
 // asked over HTTP by tests/e2e/api/answers.spec.ts.
@@ -83,5 +83,29 @@ describe('apiJsonErrors', () => {
 			headers: { 'content-type': 'text/html' }
 		});
 		expect(await run('/fixtures/nope', () => page)).toBe(page);
+	});
+});
+
+describe('apiError', () => {
+	it('answers { error } alone when there are no field messages', async () => {
+		const res = apiError(404, 'No fixture has the code NM-0000.');
+		expect(res.status).toBe(404);
+		expect(res.headers.get('content-type')).toMatch(/^application\/json/);
+		expect(await res.json()).toEqual({ error: 'No fixture has the code NM-0000.' });
+		expect(await apiError(400, 'Invalid query.', {}).json()).toEqual({ error: 'Invalid query.' });
+	});
+
+	it('gives every field a list, even of one message, and keeps headers', async () => {
+		const res = apiError(
+			400,
+			'Invalid upload.',
+			{ file: 'Choose a photo.', eventId: ['Required.', 'Must be a UUID.'] },
+			{ headers: { connection: 'close' } }
+		);
+		expect(res.headers.get('connection')).toBe('close');
+		expect(await res.json()).toEqual({
+			error: 'Invalid upload.',
+			fields: { file: ['Choose a photo.'], eventId: ['Required.', 'Must be a UUID.'] }
+		});
 	});
 });

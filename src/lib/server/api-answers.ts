@@ -6,6 +6,35 @@
  */
 import { isHttpError, isRedirect, json, type Handle } from '@sveltejs/kit';
 
+/** Messages by field: every field has a list, even of one. */
+export type FieldMessages = Record<string, string[]>;
+
+/** The one body of every API error answer. */
+export interface ApiErrorBody {
+	error: string;
+	fields?: FieldMessages;
+}
+
+/**
+ * An API error answer: `{ error, fields? }` with `status`. A field given one message gets a list
+ * of one, so clients always read lists; an empty `fields` is left out.
+ */
+export function apiError(
+	status: number,
+	error: string,
+	fields?: Record<string, string | readonly string[]>,
+	init: { headers?: Record<string, string> } = {}
+): Response {
+	const body: ApiErrorBody = { error };
+	const entries = Object.entries(fields ?? {});
+	if (entries.length) {
+		body.fields = Object.fromEntries(
+			entries.map(([k, m]) => [k, typeof m === 'string' ? [m] : [...m]])
+		);
+	}
+	return json(body, { status, headers: init.headers });
+}
+
 /**
  * The path as SvelteKit routes it (percent-escapes decoded, "%25" kept), so "/%61pi/sync" is
  * judged as the "/api/sync" it reaches; null when it cannot be decoded.
@@ -53,7 +82,8 @@ function asJson(from: Response, error: string): Response {
 	headers.delete('content-length');
 	headers.delete('content-encoding');
 	headers.set('content-type', 'application/json');
-	return new Response(JSON.stringify({ error }), { status: from.status, headers });
+	const body: ApiErrorBody = { error };
+	return new Response(JSON.stringify(body), { status: from.status, headers });
 }
 
 /** Turns any non-JSON (or JSON without `error`) error answer under /api into `{ error }`. */
@@ -70,13 +100,10 @@ export const apiJsonErrors: Handle = async ({ event, resolve }) => {
 		if (isRedirect(err)) throw err;
 		if (isHttpError(err)) {
 			const message = typeof err.body?.message === 'string' ? err.body.message : '';
-			return json(
-				{ error: message || messageFor(err.status, method, pathname, null) },
-				{ status: err.status }
-			);
+			return apiError(err.status, message || messageFor(err.status, method, pathname, null));
 		}
 		console.error(err);
-		return json({ error: messageFor(500, method, pathname, null) }, { status: 500 });
+		return apiError(500, messageFor(500, method, pathname, null));
 	}
 	if (response.status < 400) return response;
 

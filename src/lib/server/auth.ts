@@ -9,6 +9,7 @@ import Credentials from '@auth/sveltekit/providers/credentials';
 import Nodemailer from '@auth/sveltekit/providers/nodemailer';
 import type { RequestEvent } from '@sveltejs/kit';
 import { signInMail } from './auth-mail';
+import { config } from './config';
 import { getDb } from './db';
 import { accounts, sessions, users, verificationTokens } from './db/schema';
 import { mailFrom, sendMail } from './mail';
@@ -78,10 +79,7 @@ function authConfig(event: RequestEvent): SvelteKitAuthConfig {
 			Nodemailer({
 				id: EMAIL_PROVIDER_ID,
 				// Unused (sendVerificationRequest below sends through our own transport), but required.
-				server: {
-					host: process.env.SMTP_HOST ?? '127.0.0.1',
-					port: Number(process.env.SMTP_PORT ?? 2525)
-				},
+				server: { host: config().smtp.host, port: config().smtp.port },
 				from: mailFrom(),
 				maxAge: SIGN_IN_LINK_MAX_AGE_S,
 				async sendVerificationRequest({ identifier, url }) {

@@ -3,9 +3,9 @@
  * with the passing of days, when nothing is logged on the fixture, are raised every
  * NESTMARK_DUE_SCAN_MINUTES (default 15; 0 switches the job off) and on reads of health.
  */
+import { config, parseConfig, type Env } from './config';
 import { evaluateDueFlags, type FlagChange } from './health';
 
-const DEFAULT_MINUTES = 15;
 /** Reads of health run a full scan at most this often (a read of one fixture scans just it). */
 const READ_SCAN_MIN_GAP_MS = 60_000;
 
@@ -20,16 +20,9 @@ const KEY = Symbol.for('nestmark.dueScan');
 const store = globalThis as unknown as Record<symbol, Job | undefined>;
 const job: Job = (store[KEY] ??= { timer: null, running: null, lastFullScanAt: 0 });
 
-/** The scan interval from the environment, in ms; null when the job is switched off. */
-export function dueScanIntervalMs(env: Record<string, string | undefined> = process.env) {
-	const raw = env.NESTMARK_DUE_SCAN_MINUTES;
-	const minutes = raw === undefined || raw.trim() === '' ? DEFAULT_MINUTES : Number(raw);
-	if (!Number.isFinite(minutes) || minutes < 0) {
-		throw new Error(
-			`NESTMARK_DUE_SCAN_MINUTES must be a number of minutes (0 switches the scan off), not "${raw}"`
-		);
-	}
-	return minutes === 0 ? null : minutes * 60_000;
+/** The scan interval (NESTMARK_DUE_SCAN_MINUTES) in ms; null when the job is switched off. */
+export function dueScanIntervalMs(env?: Env): number | null {
+	return (env ? parseConfig(env) : config()).dueScanIntervalMs;
 }
 
 /** One full scan; a scan already under way is joined rather than doubled. */

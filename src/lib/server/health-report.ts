@@ -20,6 +20,7 @@ import type {
 	TrendLine
 } from '../schemas/health-views';
 import { db, getPool, schema } from './db';
+import { scanOnRead } from './due-scan';
 import { loadHealthFixtures } from './health';
 import { initialStateFor, policiesFor } from './state-store';
 
@@ -32,8 +33,17 @@ export const CHART_BREAK_IN_RUNS = 8;
 /** Phase-I points for the chart limits (as the domain's drift rule uses). */
 const BASELINE = 20;
 
+/** Whether a read first brings calendar flags up to date (they fall due without any event). */
+export interface ReadOptions {
+	dueScan?: boolean;
+}
+
 /** Open flags, newest first, optionally of one kind or in one area. */
-export async function openFlags(query: FlagsQuery): Promise<OpenFlagRow[]> {
+export async function openFlags(
+	query: FlagsQuery,
+	{ dueScan = false }: ReadOptions = {}
+): Promise<OpenFlagRow[]> {
+	if (dueScan) await scanOnRead();
 	const f = schema.flags;
 	const fx = schema.fixtures;
 	const rows = await db
@@ -195,7 +205,10 @@ function trendLines(windows: { cycle: number; R: number }[], spec: number): Tren
 }
 
 /** One fixture's health, or null when there is no such code. */
-export async function fixtureHealth(code: string): Promise<FixtureHealth | null> {
+export async function fixtureHealth(
+	code: string,
+	{ dueScan = false }: ReadOptions = {}
+): Promise<FixtureHealth | null> {
 	const reading = normaliseFixtureCode(code);
 	if (!reading.ok) return null;
 	const [row] = await db
@@ -204,6 +217,7 @@ export async function fixtureHealth(code: string): Promise<FixtureHealth | null>
 		.where(eq(schema.fixtures.code, reading.code))
 		.limit(1);
 	if (!row) return null;
+	if (dueScan) await scanOnRead(row.id);
 	const [fixture] = await loadHealthFixtures([row.id]);
 	const policy = (await policiesFor([fixture])).get(fixture.id)!;
 

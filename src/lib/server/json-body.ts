@@ -1,3 +1,5 @@
+import { apiError } from './api-answers';
+
 /**
  * The body could not be read as JSON within the limit; `message` is safe to show the client.
  * `drained` says whether the rest of the body was read off the connection: when it was not, the
@@ -107,6 +109,50 @@ export async function readJsonBody(request: Request, limit: number): Promise<unk
 		const detail = err instanceof SyntaxError ? ` (${err.message})` : '';
 		throw new BodyError(`The request body is not valid JSON${detail}.`);
 	}
+}
+
+/**
+ * An API route's body reader: the parsed JSON, or the 400 answer to return as it is (the body
+ * too large, unreadable, not UTF-8, not JSON). Closes the connection when the refused body is
+ * still on it.
+ */
+export async function readApiJson(request: Request, limit: number): Promise<unknown> {
+	try {
+		return await readJsonBody(request, limit);
+	} catch (err) {
+		if (err instanceof BodyError) {
+			return apiError(400, err.message, undefined, { headers: bodyErrorHeaders(err) });
+		}
+		throw err;
+	}
+}
+
+/**
+ * Reads a JSON object whose keys must all be among `known`, or the 400 answer to return. A key
+ * the API does not know is refused by name (a misspelt field would otherwise be dropped without a
+ * word). Own keys only: "constructor" or "__proto__" are not fields just because every object
+ * inherits them. `noun` names what the body describes ("a fixture").
+ */
+export async function readApiJsonObject(
+	request: Request,
+	limit: number,
+	known: Record<string, unknown>,
+	noun: string
+): Promise<Record<string, unknown> | Response> {
+	const body = await readApiJson(request, limit);
+	if (body instanceof Response) return body;
+	if (body === null || typeof body !== 'object' || Array.isArray(body)) {
+		return apiError(400, 'The body must be a JSON object.');
+	}
+	const unknown = Object.keys(body).filter((k) => !Object.hasOwn(known, k));
+	if (unknown.length) {
+		return apiError(
+			400,
+			'Unknown fields.',
+			Object.fromEntries(unknown.map((k) => [k, `"${k}" is not a field of ${noun}.`]))
+		);
+	}
+	return body as Record<string, unknown>;
 }
 
 function formatBytes(n: number): string {

@@ -1,4 +1,5 @@
 import { createTransport, type Transporter } from 'nodemailer';
+import { config } from './config';
 
 /** One outgoing message; `text` is required so every mail reads well in a plain client. */
 export interface OutgoingMail {
@@ -12,26 +13,23 @@ let transport: Transporter | undefined;
 
 /**
  * The SMTP transport, from SMTP_HOST / SMTP_PORT (and SMTP_USER / SMTP_PASSWORD for a real relay).
- * Read from process.env, not $env, so tsx scripts can send mail too.
  */
 function getTransport(): Transporter {
 	if (transport) return transport;
-	const user = process.env.SMTP_USER;
+	const { host, port, secure, user, password } = config().smtp;
 	transport = createTransport({
-		host: process.env.SMTP_HOST ?? '127.0.0.1',
-		port: Number(process.env.SMTP_PORT ?? 2525),
-		secure: process.env.SMTP_SECURE === 'true',
+		host,
+		port,
+		secure,
 		// The local fake offers neither STARTTLS nor AUTH; a real relay gets credentials.
-		...(user
-			? { auth: { user, pass: process.env.SMTP_PASSWORD ?? '' } }
-			: { ignoreTLS: process.env.SMTP_SECURE !== 'true' })
+		...(user ? { auth: { user, pass: password } } : { ignoreTLS: !secure })
 	});
 	return transport;
 }
 
 /** The From address of every mail Nestmark sends. */
 export function mailFrom(): string {
-	return process.env.MAIL_FROM ?? 'Nestmark <nestmark@localhost>';
+	return config().mailFrom;
 }
 
 /** The mail server could not be reached or refused the message. */

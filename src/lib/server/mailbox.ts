@@ -1,7 +1,8 @@
 import { readdir, readFile, stat } from 'node:fs/promises';
 import { createRequire } from 'node:module';
-import { join, resolve } from 'node:path';
+import { join } from 'node:path';
 import type { simpleParser as SimpleParser } from 'mailparser';
+import { config } from './config';
 
 /** One message the local fake SMTP server captured. */
 export interface CapturedMail {
@@ -15,13 +16,12 @@ export interface CapturedMail {
 
 /** The captured-mail viewer exists only in development and test installations. */
 export function mailViewerEnabled(): boolean {
-	const env = process.env.NESTMARK_ENV ?? 'production';
-	return env === 'development' || env === 'test';
+	return config().lenient;
 }
 
 /** The folder the fake SMTP server writes .eml files to. */
 export function mailCaptureDir(): string {
-	return resolve(process.env.MAIL_CAPTURE_DIR ?? '.data/mail');
+	return config().mailCaptureDir;
 }
 
 /** The newest captured messages first (at most `limit`); an empty list if the folder is missing. */

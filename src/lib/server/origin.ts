@@ -4,12 +4,7 @@
  * request's Host or X-Forwarded-* headers, which anyone can forge: a forged host in a sign-in
  * link would send a genuine token to someone else's site.
  */
-
-/** True where a missing ORIGIN may fall back to the request's (a developer's own machine). */
-function lenient(): boolean {
-	const env = process.env.NESTMARK_ENV ?? 'production';
-	return env === 'development' || env === 'test';
-}
+import { config } from './config';
 
 /**
  * ORIGIN from the environment (scheme, host and port only). In development and test it falls
@@ -17,9 +12,9 @@ function lenient(): boolean {
  * an error, not a silent trust in request headers.
  */
 export function publicOrigin(fallback?: string): string {
-	const configured = process.env.ORIGIN;
-	if (configured) return new URL(configured).origin;
-	if (fallback && lenient()) return new URL(fallback).origin;
+	const { origin, lenient } = config();
+	if (origin) return origin;
+	if (fallback && lenient) return new URL(fallback).origin;
 	throw new Error('ORIGIN is not set: set it to the URL people use to reach Nestmark');
 }
 

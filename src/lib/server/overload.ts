@@ -10,7 +10,8 @@
  * after calling handleError — `overloadError` notes it there, and `overloadHandle` rewrites that
  * answer on its way out.
  */
-import { json, type Handle, type RequestEvent } from '@sveltejs/kit';
+import type { Handle, RequestEvent } from '@sveltejs/kit';
+import { apiError } from './api-answers';
 import { DatabaseBusyError } from './db';
 
 /** Seconds to wait before retrying when the database itself cannot be reached (restart, failover). */
@@ -92,7 +93,7 @@ function overloadResponse(event: RequestEvent, u: Unavailable, page?: Response):
 	const headers = { 'retry-after': String(u.retryAfterS), 'cache-control': 'no-store' };
 	const path = event.url.pathname;
 	if (path === '/api' || path.startsWith('/api/')) {
-		return json({ error: u.message }, { status: 503, headers });
+		return apiError(503, u.message, undefined, { headers });
 	}
 	if (page) {
 		// The error page SvelteKit rendered (with the busy copy), answered as what it is.

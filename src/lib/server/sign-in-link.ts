@@ -1,4 +1,5 @@
 import { createHash, randomBytes } from 'node:crypto';
+import { config } from './config';
 import { db, type Db } from './db';
 import { verificationTokens } from './db/schema';
 
@@ -17,10 +18,9 @@ const DEV_SECRET = 'nestmark-development-secret-not-for-production-use';
  * fresh checkout runs; anywhere else a missing secret is an error, not a silent default.
  */
 export function authSecret(): string {
-	const secret = process.env.AUTH_SECRET;
+	const { authSecret: secret, lenient } = config();
 	if (secret) return secret;
-	const env = process.env.NESTMARK_ENV ?? 'production';
-	if (env === 'development' || env === 'test') return DEV_SECRET;
+	if (lenient) return DEV_SECRET;
 	throw new Error('AUTH_SECRET is not set (see .env.example)');
 }
 

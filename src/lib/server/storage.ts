@@ -11,30 +11,13 @@ import {
 	S3Client,
 	S3ServiceException
 } from '@aws-sdk/client-s3';
+import { config, parseConfig, type Env, type StorageSettings } from './config';
 
-/** Where objects go, as read from the environment. */
-export interface StorageSettings {
-	endpoint: string | undefined;
-	region: string;
-	bucket: string;
-	accessKeyId: string;
-	secretAccessKey: string;
-	forcePathStyle: boolean;
-}
+export type { StorageSettings } from './config';
 
-/** Development and test defaults point at the local fake (which accepts the S3RVER key pair). */
-export function storageSettings(env: NodeJS.ProcessEnv = process.env): StorageSettings {
-	const production = env.NESTMARK_ENV === 'production';
-	return {
-		endpoint: env.S3_ENDPOINT || (production ? undefined : 'http://127.0.0.1:4569'),
-		region: env.S3_REGION || 'us-east-1',
-		bucket: env.S3_BUCKET || 'nestmark-attachments',
-		accessKeyId: env.S3_ACCESS_KEY_ID || (production ? '' : 'S3RVER'),
-		secretAccessKey: env.S3_SECRET_ACCESS_KEY || (production ? '' : 'S3RVER'),
-		// Most self-hosted stores (and the fake) want bucket-in-path URLs; AWS itself does not.
-		forcePathStyle:
-			(env.S3_FORCE_PATH_STYLE ?? (env.S3_ENDPOINT || !production ? 'true' : 'false')) === 'true'
-	};
+/** Where objects go: from the configuration (or from `env`, checked the same way). */
+export function storageSettings(env?: Env): StorageSettings {
+	return (env ? parseConfig(env) : config()).storage;
 }
 
 let client: S3Client | undefined;

@@ -112,7 +112,7 @@ test('bad settings get 400 with field messages; unknown codes get 404 listing th
 	expect(missing.status()).toBe(404);
 	expect(await missing.json()).toEqual({
 		error: `No fixture with code ${nowhere} in the register.`,
-		missing: [nowhere]
+		fields: { codes: [`${nowhere} is not in the register.`] }
 	});
 });
 

@@ -197,7 +197,7 @@ describe('photo uploads against s3rver', () => {
 		);
 		expect(res.status).toBe(400);
 		const body = await res.json();
-		expect(body.fields.file).toMatch(/not a JPEG, PNG or WebP/);
+		expect(body.fields.file[0]).toMatch(/not a JPEG, PNG or WebP/);
 		expect(
 			await db.select().from(schema.attachments).where(eq(schema.attachments.id, photoIds[2]))
 		).toEqual([]);
@@ -219,7 +219,7 @@ describe('photo uploads against s3rver', () => {
 		expect(body.error).toBe(
 			'The image header claims a width of 2147483648 pixels; at most 65535 is accepted.'
 		);
-		expect(body.fields.file).toBe(body.error);
+		expect(body.fields.file).toEqual([body.error]);
 		expect(
 			await db.select().from(schema.attachments).where(eq(schema.attachments.id, photoIds[2]))
 		).toEqual([]);
@@ -237,7 +237,7 @@ describe('photo uploads against s3rver', () => {
 			}
 		);
 		expect(res.status).toBe(400);
-		expect((await res.json()).fields.file).toMatch(/limit is 8 MB/);
+		expect((await res.json()).fields.file[0]).toMatch(/limit is 8 MB/);
 		expect(
 			await db.select().from(schema.attachments).where(eq(schema.attachments.id, photoIds[2]))
 		).toEqual([]);

@@ -245,8 +245,8 @@ describe('GET /api/flags and GET /api/fixtures/[code]/health', () => {
 		const bad = await call(getFlags, tech, '/api/flags?kind=rusty&area=north');
 		expect(bad.status).toBe(400);
 		expect(bad.body.fields).toEqual({
-			kind: expect.stringContaining('kind must be one of: break-in-due'),
-			area: 'area must be a numeric area id.'
+			kind: [expect.stringContaining('kind must be one of: break-in-due')],
+			area: ['area must be a numeric area id.']
 		});
 		expect((await call(getHealth, null, '/api/fixtures/x/health', { code: 'x' })).status).toBe(401);
 		const missing = await call(getHealth, tech, '/api/fixtures/NM-0000/health', {

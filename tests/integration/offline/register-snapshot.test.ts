@@ -142,7 +142,7 @@ describe('GET /api/register-snapshot', () => {
 		expect((await get(operator, `?code=${unknown}`)).status).toBe(404);
 		const bad = await get(operator, '?code=NM-0000');
 		expect(bad.status).toBe(400);
-		expect((await bad.json()).fields.code).toMatch(/zero/);
+		expect((await bad.json()).fields.code[0]).toMatch(/zero/);
 	});
 });
 

@@ -1,6 +1,7 @@
 import { drizzle, type MySql2Database } from 'drizzle-orm/mysql2';
 import mysql, { type PoolConnection } from 'mysql2/promise';
 import { asHolder, GatedPool, poolLimits, type AppPool, type PoolStats } from './pool';
+import { config } from '../config';
 import * as schema from './schema';
 
 export { schema };
@@ -18,9 +19,9 @@ let pool: GatedPool | undefined;
 let instance: Db | undefined;
 let closingOnShutdown = false;
 
-/** The connection URL; read from the process environment so scripts and the app share it. */
+/** The connection URL (DATABASE_URL), for the app and the scripts alike. */
 export function databaseUrl(): string {
-	const url = process.env.DATABASE_URL;
+	const url = config().databaseUrl;
 	if (!url) throw new Error('DATABASE_URL is not set (see .env.example)');
 	return url;
 }

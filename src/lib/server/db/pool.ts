@@ -17,6 +17,7 @@
  */
 import { AsyncLocalStorage } from 'node:async_hooks';
 import type { Pool, PoolConnection } from 'mysql2/promise';
+import { config, parseConfig, type Env } from '../config';
 
 /** How big the pool is and how long and how many may wait for it. */
 export interface PoolLimits {
@@ -28,34 +29,11 @@ export interface PoolLimits {
 	acquireTimeoutMs: number;
 }
 
-export const DEFAULT_POOL_LIMITS: PoolLimits = {
-	size: 10,
-	queueLimit: 100,
-	acquireTimeoutMs: 5000
-};
+export { DEFAULT_POOL_LIMITS } from '../config';
 
-function readInt(
-	env: Record<string, string | undefined>,
-	name: string,
-	fallback: number,
-	min: number
-) {
-	const raw = env[name];
-	if (raw === undefined || raw.trim() === '') return fallback;
-	const n = Number(raw);
-	if (!Number.isInteger(n) || n < min) {
-		throw new Error(`${name} must be a whole number of at least ${min}, not "${raw}"`);
-	}
-	return n;
-}
-
-/** The pool limits from the environment, with the defaults above. */
-export function poolLimits(env: Record<string, string | undefined> = process.env): PoolLimits {
-	return {
-		size: readInt(env, 'DB_POOL_SIZE', DEFAULT_POOL_LIMITS.size, 1),
-		queueLimit: readInt(env, 'DB_POOL_QUEUE_LIMIT', DEFAULT_POOL_LIMITS.queueLimit, 0),
-		acquireTimeoutMs: readInt(env, 'DB_ACQUIRE_TIMEOUT_MS', DEFAULT_POOL_LIMITS.acquireTimeoutMs, 1)
-	};
+/** The pool limits from the configuration (or from `env`, checked the same way). */
+export function poolLimits(env?: Env): PoolLimits {
+	return (env ? parseConfig(env) : config()).pool;
 }
 
 /** The pool could not give a connection in time: too many requests at once. Answered with 503. */
@@ -98,8 +76,8 @@ interface Holding {
 const holding = new AsyncLocalStorage<Holding>();
 
 /** Whether nesting is refused: in tests and development (NESTMARK_ENV, or under vitest). */
-export function nestingGuardOn(env: Record<string, string | undefined> = process.env): boolean {
-	return env.NESTMARK_ENV === 'test' || env.NESTMARK_ENV === 'development' || !!env.VITEST;
+export function nestingGuardOn(env?: Env): boolean {
+	return (env ? parseConfig(env) : config()).nestingGuard;
 }
 
 /**

@@ -1,4 +1,5 @@
 import QRCode from 'qrcode';
+import { config } from '../config';
 import {
 	QR_ERROR_CORRECTION,
 	QR_QUIET_ZONE,
@@ -14,7 +15,7 @@ export { QR_ERROR_CORRECTION, QR_QUIET_ZONE, darkRuns, labelUrl } from '$lib/lab
  * whatever host a request claimed.
  */
 export function labelOrigin(fallback?: string): string {
-	const origin = process.env.ORIGIN || fallback;
+	const origin = config().origin || fallback;
 	if (!origin) throw new Error('ORIGIN is not set, so labels cannot carry an absolute URL');
 	return new URL(origin).origin;
 }

@@ -1,6 +1,7 @@
 import { json } from '@sveltejs/kit';
+import { fieldErrors } from '$lib/schemas/fixture-form';
+import { apiError } from '$lib/server/api-answers';
 import { flagsQuerySchema } from '$lib/schemas/flags-query';
-import { scanOnRead } from '$lib/server/due-scan';
 import { apiUser } from '$lib/server/guard';
 import { openFlags } from '$lib/server/health-report';
 import type { RequestHandler } from './$types';
@@ -13,12 +14,7 @@ export const GET: RequestHandler = async ({ locals, url }) => {
 		kind: url.searchParams.get('kind'),
 		area: url.searchParams.get('area')
 	});
-	if (!parsed.success) {
-		const fields: Record<string, string> = {};
-		for (const issue of parsed.error.issues) fields[String(issue.path[0])] = issue.message;
-		return json({ error: 'Invalid query.', fields }, { status: 400 });
-	}
-	// Calendar flags fall due without any event: bring them up to date before listing.
-	await scanOnRead();
-	return json({ flags: await openFlags(parsed.data) });
+	if (!parsed.success) return apiError(400, 'Invalid query.', fieldErrors(parsed.error));
+	// Calendar flags fall due without any event: brought up to date before listing.
+	return json({ flags: await openFlags(parsed.data, { dueScan: true }) });
 };

@@ -1,4 +1,5 @@
 import { json } from '@sveltejs/kit';
+import { apiError } from '$lib/server/api-answers';
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
 import type { RegisterSnapshot } from '$lib/schemas/register-snapshot';
 import { apiUser } from '$lib/server/guard';
@@ -20,14 +21,13 @@ export const GET: RequestHandler = async ({ locals, url, request }) => {
 	let code: string | undefined;
 	if (rawCode !== null) {
 		const reading = normaliseFixtureCode(rawCode);
-		if (!reading.ok)
-			return json({ error: reading.error, fields: { code: reading.error } }, { status: 400 });
+		if (!reading.ok) return apiError(400, reading.error, { code: reading.error });
 		code = reading.code;
 	}
 
 	const entries = await snapshot.snapshotFixtures(actor, code);
 	if (code && entries.length === 0) {
-		return json({ error: `No fixture with code ${code}.` }, { status: 404 });
+		return apiError(404, `No fixture with code ${code}.`);
 	}
 	const etag = snapshot.snapshotEtag(entries);
 	const headers = { ETag: etag, 'Cache-Control': CACHE_CONTROL, Vary: 'Cookie' };

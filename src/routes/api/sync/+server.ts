@@ -1,7 +1,8 @@
 import { json } from '@sveltejs/kit';
+import { apiError } from '$lib/server/api-answers';
 import { apiUser } from '$lib/server/guard';
 import * as ingest from '$lib/server/ingest';
-import { BodyError, bodyErrorHeaders, readJsonBody } from '$lib/server/json-body';
+import { readApiJson } from '$lib/server/json-body';
 import type { RequestHandler } from './$types';
 
 /**
@@ -12,19 +13,12 @@ export const POST: RequestHandler = async ({ locals, request }) => {
 	const actor = apiUser(locals);
 	if (actor instanceof Response) return actor;
 
-	let body: unknown;
-	try {
-		body = await readJsonBody(request, ingest.SYNC_BODY_LIMIT_BYTES);
-	} catch (err) {
-		if (err instanceof BodyError) {
-			return json({ error: err.message }, { status: 400, headers: bodyErrorHeaders(err) });
-		}
-		throw err;
-	}
+	const body = await readApiJson(request, ingest.SYNC_BODY_LIMIT_BYTES);
+	if (body instanceof Response) return body;
 
 	const envelope = ingest.parseEnvelope(body);
 	if (!envelope.ok) {
-		return json({ error: envelope.error, fields: envelope.fields }, { status: 400 });
+		return apiError(400, envelope.error, envelope.fields);
 	}
 
 	const results = await ingest.ingestBatch(actor, envelope.deviceId, envelope.events);

@@ -1,6 +1,7 @@
+import { config } from '$lib/server/config';
+import { mailViewerEnabled } from '$lib/server/mailbox';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = () => {
-	const environment = process.env.NESTMARK_ENV ?? 'production';
-	return { environment, mailCaptured: environment === 'development' || environment === 'test' };
+	return { environment: config().environment, mailCaptured: mailViewerEnabled() };
 };

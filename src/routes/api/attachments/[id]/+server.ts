@@ -1,4 +1,5 @@
 import { json } from '@sveltejs/kit';
+import { apiError } from '$lib/server/api-answers';
 import * as attachments from '$lib/server/attachments';
 import { apiUser } from '$lib/server/guard';
 import { discardRequestBody } from '$lib/server/json-body';
@@ -6,8 +7,8 @@ import { photoIdSchema, photoUploadFieldsSchema } from '$lib/schemas/attachments
 import { photoResponse } from './photo-response';
 import type { RequestHandler } from './$types';
 
-const bad = (error: string, fields: Record<string, string> = {}, status = 400) =>
-	json({ error, fields }, { status });
+const bad = (error: string, fields: Record<string, string | string[]> = {}, status = 400) =>
+	apiError(status, error, fields);
 
 /** The full photo, to signed-in people only. */
 export const GET: RequestHandler = async ({ locals, params, request }) => {
@@ -34,9 +35,11 @@ export const PUT: RequestHandler = async ({ locals, params, request }) => {
 	if (declared > limit) {
 		// Read the refused body off the connection, so the next request on it is understood.
 		const drained = await discardRequestBody(request);
-		return json(
-			{ error: tooLarge, fields: { file: tooLarge } },
-			{ status: 400, headers: drained ? {} : { connection: 'close' } }
+		return apiError(
+			400,
+			tooLarge,
+			{ file: tooLarge },
+			{ headers: drained ? {} : { connection: 'close' } }
 		);
 	}
 
@@ -59,9 +62,9 @@ export const PUT: RequestHandler = async ({ locals, params, request }) => {
 		eventId: text('eventId')
 	});
 	if (!fields.success) {
-		const messages: Record<string, string> = {};
+		const messages: Record<string, string[]> = {};
 		for (const issue of fields.error.issues)
-			messages[issue.path.join('.') || '(form)'] ??= issue.message;
+			(messages[issue.path.join('.') || '(form)'] ??= []).push(issue.message);
 		return bad('Invalid upload.', messages);
 	}
 	const file = form.get('file');

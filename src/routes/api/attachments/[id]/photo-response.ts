@@ -1,6 +1,6 @@
-import { json } from '@sveltejs/kit';
 import * as attachments from '$lib/server/attachments';
 import { photoIdSchema } from '$lib/schemas/attachments';
+import { apiError } from '$lib/server/api-answers';
 
 /**
  * A stored photo (or its thumbnail) as an HTTP response: the type read from its bytes, cached by
@@ -11,7 +11,7 @@ export async function photoResponse(
 	variant: 'full' | 'thumb',
 	request: Request
 ): Promise<Response> {
-	const notFound = () => json({ error: 'No photo with this id.' }, { status: 404 });
+	const notFound = () => apiError(404, 'No photo with this id.');
 	if (!photoIdSchema.safeParse(id).success) return notFound();
 	const photo = await attachments.readPhoto(id, variant);
 	if (!photo) return notFound();
