@@ -4,7 +4,6 @@
  * Every object is strict (unknown fields are rejected) and every number has a unit and a range.
  */
 import { z } from 'zod';
-import type { Role } from './roles';
 import { unicodeString } from './text';
 import { inspectionVerdictSchema, wearGradeSchema, wearMarkSchema } from './wear';
 
@@ -25,20 +24,6 @@ export const eventKindSchema = z.enum(EVENT_KINDS, {
 	error: `Kind must be one of: ${EVENT_KINDS.join(', ')}`
 });
 export type EventKind = z.infer<typeof eventKindSchema>;
-
-/** Which kinds each role may log (a person with several roles may log the union). */
-export const EVENT_KINDS_BY_ROLE: Record<Role, readonly EventKind[]> = {
-	operator: ['reseat', 'cleaning', 'note'],
-	technician: EVENT_KINDS,
-	supervisor: EVENT_KINDS,
-	admin: EVENT_KINDS,
-	planner: ['note']
-};
-
-/** Whether someone holding `roles` may log an event of `kind`. */
-export function mayLogKind(roles: readonly Role[], kind: EventKind): boolean {
-	return roles.some((role) => EVENT_KINDS_BY_ROLE[role]?.includes(kind));
-}
 
 /** Largest indicator reading accepted, µm (10 mm: anything bigger is a slip of the finger). */
 export const MAX_READING_UM = 10_000;

@@ -26,7 +26,7 @@ import {
 } from '$lib/schemas/fixture-csv';
 import { db, type Db } from './db';
 import { areas, events, fixtureState, fixtures, flags, locations, sites, users } from './db/schema';
-import { assertRole, type Actor } from './guard';
+import { assertCan, type Actor } from './guard';
 import * as history from './history';
 import { effectivePolicy, type EffectivePolicyEntry } from './policies';
 import { locationPath, placeResolver, type LocationPath } from './places';
@@ -37,9 +37,6 @@ import { locationPath, placeResolver, type LocationPath } from './places';
  */
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
-
-/** Roles that may add, change and import fixtures. */
-export const REGISTER_EDITORS = ['supervisor', 'admin'] as const;
 
 /** Input the register refused, with messages per field (form field names). */
 export class FixtureInputError extends Error {
@@ -396,7 +393,7 @@ export async function create(
 	input: FixtureCreateInput,
 	opts: { code?: string; random?: () => number } = {}
 ): Promise<{ id: number; code: string }> {
-	assertRole(actor, REGISTER_EDITORS, 'add fixtures');
+	assertCan(actor, 'fixture.edit');
 	await assertLocation(input.locationId);
 	let given: string | undefined;
 	if (opts.code !== undefined) {
@@ -476,7 +473,7 @@ export async function update(
 	code: string,
 	patch: FixturePatch
 ): Promise<{ code: string; moved: boolean } | null> {
-	assertRole(actor, REGISTER_EDITORS, 'change fixtures');
+	assertCan(actor, 'fixture.edit');
 	const result = await db.transaction(async (tx) => {
 		const reading = normaliseFixtureCode(code);
 		if (!reading.ok) return null;
@@ -635,7 +632,7 @@ function toPreview(checked: Awaited<ReturnType<typeof checkImport>>): ImportPrev
 
 /** Checks an import file row by row against the schema and the register; writes nothing. */
 export async function previewImport(actor: Actor, text: string): Promise<ImportPreview> {
-	assertRole(actor, REGISTER_EDITORS, 'import fixtures');
+	assertCan(actor, 'fixture.edit');
 	return toPreview(await checkImport(text, db));
 }
 
@@ -649,7 +646,7 @@ export async function commitImport(
 	text: string,
 	opts: { random?: () => number } = {}
 ): Promise<{ ok: true; codes: string[] } | { ok: false; preview: ImportPreview }> {
-	assertRole(actor, REGISTER_EDITORS, 'import fixtures');
+	assertCan(actor, 'fixture.edit');
 	class Refused extends Error {
 		constructor(readonly preview: ImportPreview) {
 			super('import refused');

@@ -13,12 +13,9 @@ import { normaliseFixtureCode } from '../domain/fixture-code';
 import { FIXTURE_TYPES, FIXTURE_TYPE_LABELS, type FixtureType } from '../schemas/fixture';
 import { POLICY_FIELDS, type PolicyValues } from '../schemas/policy-form';
 import { db, schema } from './db';
-import { assertRole, type Actor } from './guard';
+import { assertCan, type Actor } from './guard';
 import { reevaluateFlags, type FlagChange } from './health';
 import { effectivePolicy, POLICY_FIELD_INFO, type EffectivePolicyEntry } from './policies';
-
-/** Who may view and change policies. */
-export const POLICY_EDITORS = ['supervisor', 'admin'] as const;
 
 /** One value of a type's policy with its origin. */
 export interface PolicyFieldView {
@@ -42,7 +39,7 @@ export interface TypePolicyView {
 
 /** Every fixture type's policy (built-in defaults for a type with no saved row). */
 export async function typePolicies(actor: Actor): Promise<TypePolicyView[]> {
-	assertRole(actor, POLICY_EDITORS, 'view policies');
+	assertCan(actor, 'policy.edit');
 	const rows = await db.select().from(schema.policies);
 	return FIXTURE_TYPES.map((type) => {
 		const row = rows.find((r) => r.fixtureType === type);
@@ -76,7 +73,7 @@ export async function saveTypePolicy(
 	values: PolicyValues,
 	now: Date = new Date()
 ): Promise<FlagChange[]> {
-	assertRole(actor, POLICY_EDITORS, 'change policies');
+	assertCan(actor, 'policy.edit');
 	const [row] = await db
 		.select({ id: schema.policies.id })
 		.from(schema.policies)
@@ -115,7 +112,7 @@ export async function fixturePolicy(
 	entries: EffectivePolicyEntry[];
 	overrides: Partial<Record<keyof Policy, number | null>>;
 } | null> {
-	assertRole(actor, POLICY_EDITORS, 'view policies');
+	assertCan(actor, 'policy.edit');
 	const reading = normaliseFixtureCode(code);
 	if (!reading.ok) return null;
 	const [f] = await db.select().from(schema.fixtures).where(eq(schema.fixtures.code, reading.code));
@@ -136,7 +133,7 @@ export async function saveFixtureOverrides(
 	overrides: Partial<PolicyValues>,
 	now: Date = new Date()
 ): Promise<FlagChange[] | null> {
-	assertRole(actor, POLICY_EDITORS, 'change policies');
+	assertCan(actor, 'policy.edit');
 	const reading = normaliseFixtureCode(code);
 	if (!reading.ok) return null;
 	const [f] = await db

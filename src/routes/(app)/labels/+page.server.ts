@@ -17,7 +17,7 @@ export type LabelPageSelection =
 	| { kind: 'all' };
 
 export const load: PageServerLoad = async ({ locals, url }) => {
-	requireUser(locals, ['supervisor', 'admin']);
+	requireUser(locals, 'label.print');
 	const q = url.searchParams;
 	const areas = await select.labelAreas();
 	const total = areas.reduce((sum, a) => sum + a.count, 0);
