@@ -12,7 +12,7 @@ import {
 	test,
 	type APIRequestContext,
 	type APIResponse,
-	type Playwright
+	type PlaywrightWorkerArgs
 } from '@playwright/test';
 import { randomUUID } from 'node:crypto';
 import { can } from '../../../src/lib/permissions';
@@ -21,6 +21,7 @@ import { ROUTE_ACCESS, type Access } from '../../../src/lib/server/route-access'
 import { demoAccount } from '../helpers/auth';
 import { discoverRoutes, routePath, type HttpMethod } from '../helpers/route-tree';
 
+type Playwright = PlaywrightWorkerArgs['playwright'];
 type Who = 'nobody' | Role;
 const WHO: Who[] = ['nobody', ...ROLES];
 
