@@ -9,30 +9,18 @@ import {
 import { building } from '$app/environment';
 import { env } from '$env/dynamic/private';
 import { sequence } from '@sveltejs/kit/hooks';
-import type { Role } from '$lib/schemas/roles';
+import { can, refusal } from '$lib/permissions';
 import { apiJsonErrors, decodedPath, under } from '$lib/server/api-answers';
 import { authHandle, type SessionWithId } from '$lib/server/auth';
 import { config, configure } from '$lib/server/config';
 import { startDueScan } from '$lib/server/due-scan';
 import { formBodyCheck } from '$lib/server/form-body';
-import { hasRole } from '$lib/server/guard';
+import { forbiddenJson } from '$lib/server/guard';
 import { pinOrigin } from '$lib/server/origin-handle';
 import { overloadError, overloadHandle } from '$lib/server/overload';
+import { accessFor } from '$lib/server/route-access';
 import { securityHeaders } from '$lib/server/security-headers';
 import { loadSessionUser } from '$lib/server/users';
-
-/** API paths anyone may call without signing in. */
-const PUBLIC_API = new Set(['/api/health']);
-
-/** Pages anyone may open: the landing page (exactly) and the sign-in pages with what is below them. */
-const PUBLIC_PAGES = ['/signin', '/signout'];
-const PUBLIC_EXACT = new Set(['/']);
-
-/** Route areas that need a role beyond being signed in. */
-const ROLE_AREAS: { prefix: string; roles: readonly Role[] }[] = [
-	{ prefix: '/admin', roles: ['admin'] },
-	{ prefix: '/api/admin', roles: ['admin'] }
-];
 
 /** One line per request: method, path, status, time. Off with NESTMARK_REQUEST_LOG=off. */
 const requestLog: Handle = async ({ event, resolve }) => {
@@ -58,7 +46,11 @@ const locals: Handle = async ({ event, resolve }) => {
 		set(name, value, { ...opts, secure: opts.secure ?? secure });
 
 	// Public API answers (the health check) need nobody's identity, and must not wait on the pool.
-	if (PUBLIC_API.has(event.url.pathname)) {
+	const publicApi =
+		!!event.route.id &&
+		under(event.route.id, '/api') &&
+		accessFor(event.route.id, event.request.method, event.url) === 'public';
+	if (publicApi) {
 		event.locals.user = null;
 		return resolve(event);
 	}
@@ -69,45 +61,41 @@ const locals: Handle = async ({ event, resolve }) => {
 };
 
 /**
- * The first line of the route guards (every load, action and endpoint checks again itself).
- * API: JSON 401/403. Pages: signed-out people go to the sign-in page; a missing role gets the
- * 403 page from the area's layout, and any other method is refused here.
+ * The first line of the route guards, from the route table (route-access.ts); every load, action
+ * and endpoint checks again itself. API: JSON 401/403. Pages: signed-out people go to the sign-in
+ * page; a page opened without the needed role gets the 403 page from its own load (an error
+ * thrown here would show the bare fallback page), and a form post without it is refused here.
  */
 const guard: Handle = async ({ event, resolve }) => {
 	// Judged on the path as routed: "/%61pi/sync" reaches /api/sync and is guarded as the API.
 	const path = decodedPath(event.url.pathname) ?? event.url.pathname;
+	const api = under(path, '/api');
 	const user = event.locals.user;
-	const area = ROLE_AREAS.find((a) => under(path, a.prefix));
+	const routeId = event.route.id;
 
-	if (under(path, '/api')) {
-		if (PUBLIC_API.has(path)) return resolve(event);
-		if (!user) return json({ error: 'Not signed in.' }, { status: 401 });
-		if (area && !hasRole(user, area.roles)) {
-			return json({ error: `Requires the ${area.roles.join(' or ')} role.` }, { status: 403 });
-		}
+	// Unknown paths: the API still wants a session first; pages fall through to the 404 page.
+	// /auth/** never reaches here for Auth.js's own actions.
+	if (!routeId) {
+		if (api && !user) return json({ error: 'Not signed in.' }, { status: 401 });
 		return resolve(event);
 	}
 
-	// Unknown paths fall through to the 404 page; /auth/** never reaches here for Auth.js actions.
-	if (
-		!event.route.id ||
-		PUBLIC_EXACT.has(path) ||
-		PUBLIC_PAGES.some((p) => under(path, p)) ||
-		under(path, '/auth')
-	) {
-		return resolve(event);
-	}
+	const access = accessFor(routeId, event.request.method, event.url);
+	if (access === 'public') return resolve(event);
 	if (!user) {
+		if (api) return json({ error: 'Not signed in.' }, { status: 401 });
 		const next = event.url.pathname + event.url.search;
 		redirect(303, `/signin?next=${encodeURIComponent(next)}`);
 	}
-	if (area && !hasRole(user, area.roles)) {
-		const method = event.request.method;
-		if (method !== 'GET' && method !== 'HEAD') {
-			error(403, { message: `This needs the ${area.roles.join(' or ')} role.` });
-		}
-	}
-	return resolve(event);
+	if (access === 'signed-in' || (access && can(user, access))) return resolve(event);
+
+	// A route missing from the table is refused to everyone until it has an entry.
+	if (!access) console.error(`[guard] ${routeId} has no entry in the route table`);
+	const message = access ? refusal(access) : 'This address has no access rule yet.';
+	if (api) return forbiddenJson(message);
+	const method = event.request.method;
+	if (access && (method === 'GET' || method === 'HEAD')) return resolve(event);
+	error(403, { message });
 };
 
 // securityHeaders is first so it sees every answer, the rewritten ones included.

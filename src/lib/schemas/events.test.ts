@@ -1,10 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import {
 	EVENT_KINDS,
-	EVENT_KINDS_BY_ROLE,
 	MAX_EVENTS_PER_SYNC,
 	PAYLOAD_SCHEMAS,
-	mayLogKind,
 	parseSyncEvent,
 	syncEventSchema,
 	syncRequestSchema
@@ -27,7 +25,7 @@ function errorsOf(raw: unknown): Record<string, string[]> {
 	return r.errors;
 }
 
-describe('event kinds and who may log them', () => {
+describe('event kinds', () => {
 	it('has the nine kinds of the sync contract', () => {
 		expect(EVENT_KINDS).toEqual([
 			'reseat',
@@ -41,18 +39,6 @@ describe('event kinds and who may log them', () => {
 			'note'
 		]);
 		expect(Object.keys(PAYLOAD_SCHEMAS).sort()).toEqual([...EVENT_KINDS].sort());
-	});
-
-	it('operators log reseats, cleanings and notes; planners notes; the others everything', () => {
-		expect(EVENT_KINDS_BY_ROLE.operator).toEqual(['reseat', 'cleaning', 'note']);
-		expect(EVENT_KINDS_BY_ROLE.planner).toEqual(['note']);
-		for (const role of ['technician', 'supervisor', 'admin'] as const) {
-			expect(EVENT_KINDS_BY_ROLE[role]).toEqual(EVENT_KINDS);
-		}
-		expect(mayLogKind(['operator'], 'inspection')).toBe(false);
-		expect(mayLogKind(['operator', 'technician'], 'inspection')).toBe(true);
-		expect(mayLogKind(['planner'], 'reseat')).toBe(false);
-		expect(mayLogKind([], 'note')).toBe(false);
 	});
 });
 

@@ -15,7 +15,6 @@ import {
 	MAX_READING_UM,
 	SWAPPABLE_PARTS
 } from '../domain/events';
-import type { Role } from './roles';
 import { unicodeString } from './text';
 import { inspectionVerdictSchema, wearGradeSchema, wearMarkSchema } from './wear';
 
@@ -36,19 +35,6 @@ export const eventKindSchema = z.enum(EVENT_KINDS, {
 	error: `Kind must be one of: ${EVENT_KINDS.join(', ')}`
 });
 
-/** Which kinds each role may log (a person with several roles may log the union). */
-export const EVENT_KINDS_BY_ROLE: Record<Role, readonly EventKind[]> = {
-	operator: ['reseat', 'cleaning', 'note'],
-	technician: EVENT_KINDS,
-	supervisor: EVENT_KINDS,
-	admin: EVENT_KINDS,
-	planner: ['note']
-};
-
-/** Whether someone holding `roles` may log an event of `kind`. */
-export function mayLogKind(roles: readonly Role[], kind: EventKind): boolean {
-	return roles.some((role) => EVENT_KINDS_BY_ROLE[role]?.includes(kind));
-}
 
 const micrometres = (field: string) =>
 	z

@@ -8,8 +8,8 @@ import { createHash } from 'node:crypto';
 import { eq } from 'drizzle-orm';
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
 import { imageSizeProblem, sniffImage, type ImageType } from '$lib/images/image-type';
+import { can } from '$lib/permissions';
 import { PHOTO_LIMIT_BYTES } from '$lib/schemas/attachments';
-import { mayLogKind } from '$lib/schemas/events';
 import { db, schema } from './db';
 import type { Actor } from './guard';
 import * as storage from './storage';
@@ -88,7 +88,7 @@ export async function storePhoto(
 	actor: Actor,
 	upload: PhotoUpload
 ): Promise<{ status: 'stored' | 'duplicate'; attachment: AttachmentInfo }> {
-	if (!mayLogKind(actor.roles, 'inspection')) {
+	if (!can(actor, 'event.log', { kind: 'inspection' })) {
 		throw new UploadError(403, 'Only people who may log inspections can add inspection photos.');
 	}
 	const code = normaliseFixtureCode(upload.fixtureCode);

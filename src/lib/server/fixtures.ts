@@ -7,7 +7,7 @@ import type { FixtureCreateInput, FixturePatch, RegisterQuery } from '$lib/schem
 import { db, type Db } from './db';
 import { fixtureState, fixtures, flags, locations, sites, areas, users } from './db/schema';
 import { drizzleOn, inTransaction } from './db/transaction';
-import { assertRole, type Actor } from './guard';
+import { assertCan, type Actor } from './guard';
 import { refoldOn } from './health';
 import * as history from './history';
 import { ingestOn } from './ingest';
@@ -22,7 +22,6 @@ import {
 	fixtureValues,
 	isCodeKey,
 	recordColumns,
-	REGISTER_EDITORS,
 	withPlace,
 	toRecord,
 	type FixtureRecord,
@@ -35,7 +34,7 @@ import {
  * ./register-csv.ts, what both share in ./register-rows.ts; both are re-exported here.
  */
 
-export { FixtureInputError, REGISTER_EDITORS, type FixtureRecord } from './register-rows';
+export { FixtureInputError, type FixtureRecord } from './register-rows';
 export {
 	commitImport,
 	exportCsv,
@@ -245,7 +244,7 @@ export async function create(
 	input: FixtureCreateInput,
 	opts: { code?: string; random?: () => number } = {}
 ): Promise<{ id: number; code: string }> {
-	assertRole(actor, REGISTER_EDITORS, 'add fixtures');
+	assertCan(actor, 'fixture.edit');
 	await assertLocation(input.locationId);
 	let given: string | undefined;
 	if (opts.code !== undefined) {
@@ -294,7 +293,7 @@ export async function update(
 	code: string,
 	patch: FixturePatch
 ): Promise<{ code: string; moved: boolean } | null> {
-	assertRole(actor, REGISTER_EDITORS, 'change fixtures');
+	assertCan(actor, 'fixture.edit');
 	const reading = normaliseFixtureCode(code);
 	if (!reading.ok) return null;
 	// One connection: the row, the event, the fold and the flags all go through it.

@@ -7,10 +7,7 @@ import { analyzeConstraints } from '$lib/domain/constraints';
 import { geometryInput, type GeometryForm } from '$lib/schemas/geometry';
 import { db } from './db';
 import { couplingGeometries, fixtures, users } from './db/schema';
-import { type Actor, assertRole } from './guard';
-
-/** Who may save a geometry version. */
-export const GEOMETRY_EDITORS = ['supervisor', 'admin'] as const;
+import { type Actor, assertCan } from './guard';
 
 /** A stored version as the page shows it. */
 export interface GeometryVersion {
@@ -69,7 +66,7 @@ export async function save(
 	fixtureId: number,
 	form: GeometryForm
 ): Promise<{ version: number; status: string }> {
-	assertRole(actor, GEOMETRY_EDITORS, 'save a coupling geometry');
+	assertCan(actor, 'geometry.edit');
 	const input = geometryInput(form);
 	const status = analyzeConstraints(input.contacts).status;
 	return db.transaction(async (tx) => {

@@ -1,4 +1,5 @@
 import { error, json } from '@sveltejs/kit';
+import { can, refusal, type Action, type Subject } from '$lib/permissions';
 import type { Role } from '$lib/schemas/roles';
 
 /** Who is acting: what every service function that changes data receives. */
@@ -11,7 +12,7 @@ export interface Actor {
 	sessionId?: string;
 }
 
-/** Thrown by services when the actor lacks a role; routes turn it into 403. */
+/** Thrown by services when the actor may not do something; routes turn it into 403. */
 export class ForbiddenError extends Error {
 	readonly status = 403;
 	constructor(message = 'You do not have permission to do that.') {
@@ -20,24 +21,20 @@ export class ForbiddenError extends Error {
 	}
 }
 
-/** True when the actor holds at least one of `roles`. */
-export function hasRole(actor: Pick<Actor, 'roles'> | null | undefined, roles: readonly Role[]) {
-	return !!actor && actor.roles.some((r) => roles.includes(r));
+/** Service-level check: throws ForbiddenError unless the actor may do `action` (see permissions.ts). */
+export function assertCan<A extends Action>(actor: Actor, action: A, subject?: Subject<A>): void {
+	if (!can(actor, action, subject)) throw new ForbiddenError(refusal(action));
 }
 
-/** Service-level check: throws ForbiddenError unless the actor holds one of `roles`. */
-export function assertRole(actor: Actor, roles: readonly Role[], what = 'do that'): void {
-	if (!hasRole(actor, roles)) {
-		throw new ForbiddenError(`You need the ${roles.join(' or ')} role to ${what}.`);
-	}
+/** The API's one refusal answer: JSON `{ error }` with status 403. */
+export function forbiddenJson(message: string): Response {
+	return json({ error: message }, { status: 403 });
 }
 
-/** Page/action guard: 401 without a session, 403 without one of `roles` (none = any signed-in user). */
-export function requireUser(locals: App.Locals, roles: readonly Role[] = []): Actor {
+/** Page/action guard: 401 without a session, 403 unless the person may do `action` (if given). */
+export function requireUser(locals: App.Locals, action?: Action): Actor {
 	if (!locals.user) error(401, { message: 'Please sign in.' });
-	if (roles.length && !hasRole(locals.user, roles)) {
-		error(403, { message: `This page is for the ${roles.join(' or ')} role.` });
-	}
+	if (action && !can(locals.user, action)) error(403, { message: refusal(action) });
 	return locals.user;
 }
 
@@ -45,10 +42,8 @@ export function requireUser(locals: App.Locals, roles: readonly Role[] = []): Ac
  * API guard: returns the actor, or a JSON Response (401/403) for the endpoint to return as is.
  * Endpoints answer JSON errors whatever the Accept header says.
  */
-export function apiUser(locals: App.Locals, roles: readonly Role[] = []): Actor | Response {
+export function apiUser(locals: App.Locals, action?: Action): Actor | Response {
 	if (!locals.user) return json({ error: 'Not signed in.' }, { status: 401 });
-	if (roles.length && !hasRole(locals.user, roles)) {
-		return json({ error: `Requires the ${roles.join(' or ')} role.` }, { status: 403 });
-	}
+	if (action && !can(locals.user, action)) return forbiddenJson(refusal(action));
 	return locals.user;
 }

@@ -41,10 +41,9 @@ import { createHash } from 'node:crypto';
 import type { PoolConnection } from 'mysql2/promise';
 import { normaliseFixtureCode } from '../domain/fixture-code';
 import type { Policy } from '../domain/policy';
+import { can, rolesThatCan } from '../permissions';
 import {
-	EVENT_KINDS_BY_ROLE,
 	MAX_EVENTS_PER_SYNC,
-	mayLogKind,
 	parseSyncEvent,
 	syncRequestSchema,
 	type EventKind,
@@ -154,7 +153,7 @@ export function roleRefusal(roles: readonly Role[], kind: EventKind): string {
 	const who = roles.length
 		? `${capitalise(listWords(ROLES.filter((r) => roles.includes(r)).map((r) => ROLE_PLURALS[r])))} cannot`
 		: 'Your account has no role that may';
-	const allowed = ROLES.filter((r) => EVENT_KINDS_BY_ROLE[r].includes(kind));
+	const allowed = rolesThatCan('event.log', { kind });
 	const hint = allowed.length ? `; a ${listWords(allowed, 'or')} can` : '';
 	return `${who} log ${KIND_PLURALS[kind]}${hint}.`;
 }
@@ -298,7 +297,7 @@ function refusal(item: Item, actor: Actor, now: Date): string | undefined {
 			? `No fixture with code ${reading.code} in the register.`
 			: `Fixture code "${e.fixtureCode}": ${reading.error}`;
 	}
-	if (!mayLogKind(actor.roles, e.kind)) return roleRefusal(actor.roles, e.kind);
+	if (!can(actor, 'event.log', { kind: e.kind })) return roleRefusal(actor.roles, e.kind);
 	const ahead = Date.parse(e.occurredAt) - now.getTime();
 	if (ahead > FUTURE_TOLERANCE_MS) {
 		return `occurredAt ${e.occurredAt} is ${minutesAhead(ahead)} ahead of the server clock (at most 10 minutes allowed); check the phone's date and time.`;

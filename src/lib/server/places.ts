@@ -2,7 +2,7 @@ import { asc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { db, type Db } from './db';
 import { areas, locations, sites } from './db/schema';
-import { assertRole, type Actor } from './guard';
+import { assertCan, type Actor } from './guard';
 import type { LocationPath, SiteNode } from '../schemas/places-views';
 
 export type { LocationPath, SiteNode };
@@ -142,7 +142,7 @@ export async function placeResolver(q: Db | Tx = db) {
 
 /** The site named `name`, created if missing (admin). */
 export async function ensureSite(actor: Actor, name: string, timezone = 'UTC'): Promise<number> {
-	assertRole(actor, ['admin'], 'add sites');
+	assertCan(actor, 'place.edit');
 	const clean = placeNameSchema.parse(name);
 	const [found] = await db.select({ id: sites.id }).from(sites).where(eq(sites.name, clean));
 	if (found) return found.id;
@@ -152,7 +152,7 @@ export async function ensureSite(actor: Actor, name: string, timezone = 'UTC'): 
 
 /** The area named `name` in a site, created if missing (admin). */
 export async function ensureArea(actor: Actor, siteId: number, name: string): Promise<number> {
-	assertRole(actor, ['admin'], 'add areas');
+	assertCan(actor, 'place.edit');
 	const clean = placeNameSchema.parse(name);
 	const existing = await db
 		.select({ id: areas.id, name: areas.name })
@@ -166,7 +166,7 @@ export async function ensureArea(actor: Actor, siteId: number, name: string): Pr
 
 /** The location named `name` in an area, created if missing (admin). */
 export async function ensureLocation(actor: Actor, areaId: number, name: string): Promise<number> {
-	assertRole(actor, ['admin'], 'add locations');
+	assertCan(actor, 'place.edit');
 	const clean = placeNameSchema.parse(name);
 	const existing = await db
 		.select({ id: locations.id, name: locations.name })

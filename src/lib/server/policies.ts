@@ -3,7 +3,7 @@ import { DEFAULT_POLICY, POLICY_SOURCES, type Policy } from '$lib/domain/policy'
 import { FIXTURE_TYPES, FIXTURE_TYPE_LABELS, type FixtureType } from '$lib/schemas/fixture';
 import { db } from './db';
 import { policies } from './db/schema';
-import { assertRole, type Actor } from './guard';
+import { assertCan, type Actor } from './guard';
 import type { EffectivePolicyEntry, PolicySourceKind } from '../schemas/policy-views';
 
 export type { EffectivePolicyEntry, PolicySourceKind };
@@ -121,7 +121,7 @@ export async function effectivePolicy(f: PolicySubject): Promise<EffectivePolicy
  * Existing rows are left as the shop set them. Returns how many rows were added.
  */
 export async function ensureTypePolicies(actor: Actor): Promise<number> {
-	assertRole(actor, ['admin'], 'set policies');
+	assertCan(actor, 'policy.defaults');
 	const existing = await db.select({ type: policies.fixtureType }).from(policies);
 	const have = new Set(existing.map((r) => r.type));
 	let added = 0;

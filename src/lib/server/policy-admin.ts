@@ -13,19 +13,16 @@ import { normaliseFixtureCode } from '../domain/fixture-code';
 import { FIXTURE_TYPES, FIXTURE_TYPE_LABELS, type FixtureType } from '../schemas/fixture';
 import { POLICY_FIELDS, type PolicyValues } from '../schemas/policy-form';
 import { db, schema } from './db';
-import { assertRole, type Actor } from './guard';
+import { assertCan, type Actor } from './guard';
 import { reevaluateFlags, type FlagChange } from './health';
 import type { PolicyFieldView, TypePolicyView } from '../schemas/policy-views';
 import { effectivePolicy, POLICY_FIELD_INFO, type EffectivePolicyEntry } from './policies';
 
 export type { PolicyFieldView, TypePolicyView };
 
-/** Who may view and change policies. */
-export const POLICY_EDITORS = ['supervisor', 'admin'] as const;
-
 /** Every fixture type's policy (built-in defaults for a type with no saved row). */
 export async function typePolicies(actor: Actor): Promise<TypePolicyView[]> {
-	assertRole(actor, POLICY_EDITORS, 'view policies');
+	assertCan(actor, 'policy.edit');
 	const rows = await db.select().from(schema.policies);
 	return FIXTURE_TYPES.map((type) => {
 		const row = rows.find((r) => r.fixtureType === type);
@@ -59,7 +56,7 @@ export async function saveTypePolicy(
 	values: PolicyValues,
 	now: Date = new Date()
 ): Promise<FlagChange[]> {
-	assertRole(actor, POLICY_EDITORS, 'change policies');
+	assertCan(actor, 'policy.edit');
 	const [row] = await db
 		.select({ id: schema.policies.id })
 		.from(schema.policies)
@@ -98,7 +95,7 @@ export async function fixturePolicy(
 	entries: EffectivePolicyEntry[];
 	overrides: Partial<Record<keyof Policy, number | null>>;
 } | null> {
-	assertRole(actor, POLICY_EDITORS, 'view policies');
+	assertCan(actor, 'policy.edit');
 	const reading = normaliseFixtureCode(code);
 	if (!reading.ok) return null;
 	const [f] = await db.select().from(schema.fixtures).where(eq(schema.fixtures.code, reading.code));
@@ -119,7 +116,7 @@ export async function saveFixtureOverrides(
 	overrides: Partial<PolicyValues>,
 	now: Date = new Date()
 ): Promise<FlagChange[] | null> {
-	assertRole(actor, POLICY_EDITORS, 'change policies');
+	assertCan(actor, 'policy.edit');
 	const reading = normaliseFixtureCode(code);
 	if (!reading.ok) return null;
 	const [f] = await db

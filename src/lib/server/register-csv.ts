@@ -15,7 +15,7 @@ import {
 } from '$lib/schemas/fixture-csv';
 import { db, type Db } from './db';
 import { areas, fixtures, locations, sites } from './db/schema';
-import { assertRole, type Actor } from './guard';
+import { assertCan, type Actor } from './guard';
 import { placeResolver, type LocationPath } from './places';
 import {
 	CODE_ATTEMPTS,
@@ -24,7 +24,6 @@ import {
 	fixtureValues,
 	isCodeKey,
 	recordColumns,
-	REGISTER_EDITORS,
 	withPlace,
 	type Tx
 } from './register-rows';
@@ -129,7 +128,7 @@ function toPreview(checked: Awaited<ReturnType<typeof checkImport>>): ImportPrev
 
 /** Checks an import file row by row against the schema and the register; writes nothing. */
 export async function previewImport(actor: Actor, text: string): Promise<ImportPreview> {
-	assertRole(actor, REGISTER_EDITORS, 'import fixtures');
+	assertCan(actor, 'fixture.edit');
 	return toPreview(await checkImport(text, db));
 }
 
@@ -143,7 +142,7 @@ export async function commitImport(
 	text: string,
 	opts: { random?: () => number } = {}
 ): Promise<{ ok: true; codes: string[] } | { ok: false; preview: ImportPreview }> {
-	assertRole(actor, REGISTER_EDITORS, 'import fixtures');
+	assertCan(actor, 'fixture.edit');
 	class Refused extends Error {
 		constructor(readonly preview: ImportPreview) {
 			super('import refused');

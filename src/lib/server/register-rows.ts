@@ -1,5 +1,5 @@
 /**
- * What the register's services share: who may edit it, its input error, the row ↔ record mapping,
+ * What the register's services share: its input error, the row ↔ record mapping,
  * the list filters and the fixture → location → area → site join. Used by ./fixtures.ts (the
  * register) and ./register-csv.ts (its CSV export and import).
  */
@@ -13,9 +13,6 @@ import { areas, fixtures, flags, locations, sites } from './db/schema';
 
 /** A Drizzle transaction of the register's services. */
 export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
-
-/** Roles that may add, change and import fixtures. */
-export const REGISTER_EDITORS = ['supervisor', 'admin'] as const;
 
 /** Input the register refused, with messages per field (form field names). */
 export class FixtureInputError extends Error {

@@ -13,7 +13,7 @@ import {
 import { inviteMail } from './auth-mail';
 import { db, type Db } from './db';
 import { signInSessions, userRoles, users } from './db/schema';
-import { assertRole, type Actor } from './guard';
+import { assertCan, type Actor } from './guard';
 import { sendMail } from './mail';
 import { liveSince, revokeUserSessions, touchSession } from './sessions';
 import { createSignInLink, INVITE_LINK_MAX_AGE_S } from './sign-in-link';
@@ -223,7 +223,7 @@ async function insertUser(
  * admin; without one the caller is trusted (the seed script).
  */
 export async function createUser(input: NewUser, actor?: Actor): Promise<UserSummary> {
-	if (actor) assertRole(actor, ['admin'], 'add people');
+	if (actor) assertCan(actor, 'user.admin');
 	const data = newUserSchema.parse(input);
 	const id = await db.transaction((tx) => insertUser(tx, data, actor, false));
 	return (await getUser(id))!;
@@ -238,7 +238,7 @@ export async function inviteUser(
 	actor: Actor,
 	opts: { origin: string }
 ): Promise<UserSummary> {
-	assertRole(actor, ['admin'], 'invite people');
+	assertCan(actor, 'user.admin');
 	const data = inviteSchema.parse(input);
 	const id = await db.transaction(async (tx) => {
 		const id = await insertUser(tx, data, actor, true);
@@ -254,7 +254,7 @@ export async function resendInvitation(
 	actor: Actor,
 	opts: { origin: string }
 ): Promise<UserSummary> {
-	assertRole(actor, ['admin'], 'send invitations');
+	assertCan(actor, 'user.admin');
 	const user = await getUser(userId);
 	if (!user) throw new UserRuleError('There is nobody with that id.');
 	if (!user.active) throw new UserRuleError(`${user.name} is deactivated; reactivate them first.`);
@@ -348,7 +348,7 @@ export async function changePassword(
 
 /** Replaces a person's roles with exactly `roles` (admin only; keeps at least one admin). */
 export async function setRoles(userId: string, roles: Role[], actor: Actor): Promise<Role[]> {
-	assertRole(actor, ['admin'], 'change roles');
+	assertCan(actor, 'user.admin');
 	const wanted = rolesSchema.parse(roles);
 	await db.transaction(async (tx) => {
 		const row = await requireUserRow(tx, userId);
@@ -381,7 +381,7 @@ export async function setRoles(userId: string, roles: Role[], actor: Actor): Pro
 
 /** Adds one role (no change if the person already holds it). */
 export async function grantRole(userId: string, role: Role, actor: Actor): Promise<Role[]> {
-	assertRole(actor, ['admin'], 'change roles');
+	assertCan(actor, 'user.admin');
 	const current = (await getUser(userId))?.roles;
 	if (!current) throw new UserRuleError('There is nobody with that id.');
 	return setRoles(userId, [...current, role], actor);
@@ -389,7 +389,7 @@ export async function grantRole(userId: string, role: Role, actor: Actor): Promi
 
 /** Removes one role; a person keeps at least one (deactivate them to remove all access). */
 export async function revokeRole(userId: string, role: Role, actor: Actor): Promise<Role[]> {
-	assertRole(actor, ['admin'], 'change roles');
+	assertCan(actor, 'user.admin');
 	const current = (await getUser(userId))?.roles;
 	if (!current) throw new UserRuleError('There is nobody with that id.');
 	const rest = current.filter((r) => r !== role);
@@ -407,7 +407,7 @@ export async function revokeRole(userId: string, role: Role, actor: Actor): Prom
  * recorded changes: entries stay attributed to them.
  */
 export async function deactivate(userId: string, actor: Actor): Promise<void> {
-	assertRole(actor, ['admin'], 'deactivate people');
+	assertCan(actor, 'user.admin');
 	if (userId === actor.id) {
 		throw new UserRuleError('You cannot deactivate yourself. Ask another admin to do it.');
 	}
@@ -431,7 +431,7 @@ export async function deactivate(userId: string, actor: Actor): Promise<void> {
  * sessions deactivation revoked stay revoked. deactivatedAt is kept as "last deactivated".
  */
 export async function reactivate(userId: string, actor: Actor): Promise<void> {
-	assertRole(actor, ['admin'], 'reactivate people');
+	assertCan(actor, 'user.admin');
 	await db.transaction(async (tx) => {
 		await requireUserRow(tx, userId);
 		await tx.update(users).set({ active: true }).where(eq(users.id, userId));

@@ -7,6 +7,6 @@ import type { PageServerLoad } from './$types';
 const PREVIEW = 80;
 
 export const load: PageServerLoad = async ({ locals, url }) => {
-	requireUser(locals, ['supervisor', 'admin']);
+	requireUser(locals, 'label.print');
 	return { ...(await labelPreview(url.searchParams, PREVIEW)), origin: labelOrigin(url.origin) };
 };

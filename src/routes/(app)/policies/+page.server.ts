@@ -6,7 +6,7 @@ import * as policyAdmin from '$lib/server/policy-admin';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async ({ locals, url }) => {
-	const actor = requireUser(locals, policyAdmin.POLICY_EDITORS);
+	const actor = requireUser(locals, 'policy.edit');
 	const code = url.searchParams.get('fixture')?.trim() || null;
 	const [types, fixture] = await Promise.all([
 		policyAdmin.typePolicies(actor),
@@ -35,7 +35,7 @@ function forbidden(e: unknown): never {
 
 export const actions: Actions = {
 	saveType: async ({ locals, request }) => {
-		const actor = requireUser(locals, policyAdmin.POLICY_EDITORS);
+		const actor = requireUser(locals, 'policy.edit');
 		const values = await formValues(request);
 		const parsed = typePolicyFormSchema.safeParse(values);
 		if (!parsed.success) {
@@ -51,7 +51,7 @@ export const actions: Actions = {
 		redirect(303, `/policies?saved=${type}&changed=${changes.length}#type-${type}`);
 	},
 	saveOverrides: async ({ locals, request }) => {
-		const actor = requireUser(locals, policyAdmin.POLICY_EDITORS);
+		const actor = requireUser(locals, 'policy.edit');
 		const values = await formValues(request);
 		const parsed = overridesFormSchema.safeParse(values);
 		if (!parsed.success) {

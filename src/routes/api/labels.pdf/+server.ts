@@ -7,9 +7,6 @@ import { labelOrigin } from '$lib/server/labels/qr';
 import * as select from '$lib/server/labels/select';
 import type { RequestHandler } from './$types';
 
-/** Roles that print labels (they manage the register). */
-const LABEL_ROLES = ['supervisor', 'admin'] as const;
-
 // Sent in pieces so a browser can show download progress on a slow network.
 const CHUNK = 64 * 1024;
 
@@ -21,7 +18,7 @@ const badRequest = (fields: Record<string, string | string[]>) =>
  * the labels as a PDF, laid out on sheets or one per page.
  */
 export const GET: RequestHandler = async ({ locals, url }) => {
-	const actor = apiUser(locals, LABEL_ROLES);
+	const actor = apiUser(locals, 'label.print');
 	if (actor instanceof Response) return actor;
 
 	const reading = parseLabelParams(url.searchParams);

@@ -4,7 +4,7 @@ import { listCapturedMail, mailCaptureDir, mailViewerEnabled } from '$lib/server
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async ({ locals }) => {
-	requireUser(locals, ['admin']);
+	requireUser(locals, 'mail.view');
 	// A real installation sends real mail; there is nothing captured to show, so no page.
 	if (!mailViewerEnabled()) error(404, { message: 'Not found' });
 	return { folder: mailCaptureDir(), mails: await listCapturedMail(50) };

@@ -29,7 +29,7 @@ const DONE: Record<string, (name: string) => string> = {
 };
 
 export const load: PageServerLoad = async ({ locals, url }) => {
-	const me = requireUser(locals, ['admin']);
+	const me = requireUser(locals, 'user.admin');
 	const list = await people.listUsers();
 	const done = url.searchParams.get('done');
 	const who = list.find((u) => u.id === url.searchParams.get('user'));
@@ -72,7 +72,7 @@ const done = (kind: string, userId: string) =>
 
 export const actions: Actions = {
 	invite: async ({ locals, request, url }) => {
-		const actor = requireUser(locals, ['admin']);
+		const actor = requireUser(locals, 'user.admin');
 		const form = await request.formData();
 		const values = {
 			email: String(form.get('email') ?? ''),
@@ -97,7 +97,7 @@ export const actions: Actions = {
 	},
 
 	roles: async ({ locals, request }) => {
-		const actor = requireUser(locals, ['admin']);
+		const actor = requireUser(locals, 'user.admin');
 		const form = await request.formData();
 		const values = {
 			userId: String(form.get('userId') ?? ''),
@@ -120,7 +120,7 @@ export const actions: Actions = {
 	},
 
 	deactivate: async ({ locals, request }) => {
-		const actor = requireUser(locals, ['admin']);
+		const actor = requireUser(locals, 'user.admin');
 		const parsed = await personForm(request);
 		if (!parsed.success)
 			return failWith(400, { action: 'deactivate', errors: { form: ['Choose a person.'] } });
@@ -133,7 +133,7 @@ export const actions: Actions = {
 	},
 
 	reactivate: async ({ locals, request }) => {
-		const actor = requireUser(locals, ['admin']);
+		const actor = requireUser(locals, 'user.admin');
 		const parsed = await personForm(request);
 		if (!parsed.success)
 			return failWith(400, { action: 'reactivate', errors: { form: ['Choose a person.'] } });
@@ -146,7 +146,7 @@ export const actions: Actions = {
 	},
 
 	resend: async ({ locals, request, url }) => {
-		const actor = requireUser(locals, ['admin']);
+		const actor = requireUser(locals, 'user.admin');
 		const parsed = await personForm(request);
 		if (!parsed.success)
 			return failWith(400, { action: 'resend', errors: { form: ['Choose a person.'] } });

@@ -3,7 +3,7 @@ import type { Role } from '$lib/schemas/roles';
 /**
  * One line on what each role is for, shown beside the role checkboxes. Everyone signed in reads the
  * register, its health and its history; the lines say what each role adds. Keep them in step with
- * EVENT_KINDS_BY_ROLE and the server's role lists.
+ * the permission table in $lib/permissions.
  */
 export const ROLE_HINTS: Record<Role, string> = {
 	operator: 'logs reseats, cleanings and notes at the machine',
