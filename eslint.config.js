@@ -33,6 +33,22 @@ export default ts.config(
 				parser: ts.parser,
 				svelteConfig
 			}
+		},
+		rules: {
+			// Components never depend on the server layer, not even for a type (lint:layers checks
+			// the rest of the layering; it cannot see type-only imports inside .svelte files).
+			'no-restricted-imports': [
+				'error',
+				{
+					patterns: [
+						{
+							group: ['$lib/server', '$lib/server/*'],
+							message:
+								'Components import types from $lib/domain or $lib/schemas, never from $lib/server.'
+						}
+					]
+				}
+			]
 		}
 	},
 	{

@@ -87,10 +87,25 @@ export default defineConfig({
 	],
 	server: { host: '127.0.0.1' },
 	test: {
-		include: ['src/**/*.test.ts', 'tests/integration/**/*.test.ts'],
 		environment: 'node',
-		// Integration files share one test database; run files one at a time.
-		fileParallelism: false,
-		testTimeout: 20_000
+		testTimeout: 20_000,
+		projects: [
+			{
+				// Pure code and services without I/O: files run in parallel.
+				extends: true,
+				test: { name: 'unit', include: ['src/**/*.test.ts'] }
+			},
+			{
+				// Real MariaDB, S3 and mail fakes. The files share one test database: one at a time.
+				extends: true,
+				test: {
+					name: 'integration',
+					include: ['tests/integration/**/*.test.ts'],
+					fileParallelism: false,
+					globalSetup: ['tests/integration/setup/mail.ts'],
+					setupFiles: ['tests/integration/setup/env.ts']
+				}
+			}
+		]
 	}
 });
