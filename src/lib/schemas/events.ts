@@ -35,7 +35,6 @@ export const eventKindSchema = z.enum(EVENT_KINDS, {
 	error: `Kind must be one of: ${EVENT_KINDS.join(', ')}`
 });
 
-
 const micrometres = (field: string) =>
 	z
 		.number({ error: `${field} must be a number of micrometres` })

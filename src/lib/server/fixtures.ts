@@ -2,7 +2,7 @@ import { randomUUID } from 'node:crypto';
 import { and, asc, count, desc, eq, inArray, isNull, type SQL } from 'drizzle-orm';
 import type { PoolConnection } from 'mysql2/promise';
 import { generateFixtureCode, normaliseFixtureCode } from '$lib/domain/fixture-code';
-import type { FixtureType, FixtureStatus, FlagKind } from '$lib/schemas/fixture';
+import type { FlagKind } from '$lib/schemas/fixture';
 import type { FixtureCreateInput, FixturePatch, RegisterQuery } from '$lib/schemas/fixture-form';
 import { db, type Db } from './db';
 import { fixtureState, fixtures, flags, locations, sites, areas, users } from './db/schema';
@@ -11,8 +11,8 @@ import { assertCan, type Actor } from './guard';
 import { refoldOn } from './health';
 import * as history from './history';
 import { ingestOn } from './ingest';
-import { effectivePolicy, type EffectivePolicyEntry } from './policies';
-import { locationPath, type LocationPath } from './places';
+import { effectivePolicy } from './policies';
+import { locationPath } from './places';
 import {
 	assertLocation,
 	FixtureInputError,
@@ -24,9 +24,14 @@ import {
 	recordColumns,
 	withPlace,
 	toRecord,
-	type FixtureRecord,
 	type Tx
 } from './register-rows';
+import type {
+	FixtureDetail,
+	FixtureListItem,
+	FixtureRecord,
+	RegisterPage
+} from '../schemas/register-views';
 
 /*
  * The fixture register: plain async functions that the pages, the API, the CSV import and the
@@ -34,7 +39,8 @@ import {
  * ./register-csv.ts, what both share in ./register-rows.ts; both are re-exported here.
  */
 
-export { FixtureInputError, type FixtureRecord } from './register-rows';
+export { FixtureInputError } from './register-rows';
+export type { FixtureDetail, FixtureListItem, FixtureRecord, RegisterPage };
 export {
 	commitImport,
 	exportCsv,
@@ -45,26 +51,6 @@ export {
 
 /** The device id of events the server itself logs (a move made in the register). */
 export const SERVER_DEVICE = 'server';
-
-/** One row of the register list. */
-export interface FixtureListItem {
-	id: number;
-	code: string;
-	name: string;
-	type: FixtureType;
-	status: FixtureStatus;
-	place: LocationPath;
-	openFlags: FlagKind[];
-	updatedAt: string;
-}
-
-/** One page of the register, and how many fixtures match in all. */
-export interface RegisterPage {
-	items: FixtureListItem[];
-	total: number;
-	page: number;
-	pageSize: number;
-}
 
 function ordering(query: Pick<RegisterQuery, 'sort' | 'dir'>): SQL[] {
 	const d = query.dir === 'desc' ? desc : asc;
@@ -147,28 +133,6 @@ export async function list(query: RegisterQuery): Promise<RegisterPage> {
 		page: query.page,
 		pageSize: query.pageSize
 	};
-}
-
-/** Everything the fixture page shows. */
-export interface FixtureDetail extends FixtureRecord {
-	place: LocationPath;
-	createdBy: string | null;
-	policy: EffectivePolicyEntry[];
-	state: {
-		eventCount: number;
-		totalCycles: number;
-		cyclesSinceCleaning: number;
-		cyclesSinceInspection: number;
-		cyclesSincePartSwap: number;
-		repeatability_um: number | null;
-		wearGrade: number | null;
-		lastEventAt: string | null;
-		lastCleaningAt: string | null;
-		lastInspectionAt: string | null;
-		updatedAt: string;
-	} | null;
-	openFlags: { id: number; kind: FlagKind; reason: string; raisedAt: string }[];
-	recentEvents: history.HistoryEntry[];
 }
 
 async function findRow(code: string, q: Db | Tx = db) {

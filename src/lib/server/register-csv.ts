@@ -6,13 +6,7 @@
 import { asc, inArray } from 'drizzle-orm';
 import { generateFixtureCode } from '$lib/domain/fixture-code';
 import type { RegisterQuery } from '$lib/schemas/fixture-form';
-import {
-	parseFixtureCsv,
-	toFixtureCsv,
-	type CsvRecord,
-	type CsvRowError,
-	type CsvColumn
-} from '$lib/schemas/fixture-csv';
+import { parseFixtureCsv, toFixtureCsv, type CsvRecord } from '$lib/schemas/fixture-csv';
 import { db, type Db } from './db';
 import { areas, fixtures, locations, sites } from './db/schema';
 import { assertCan, type Actor } from './guard';
@@ -27,6 +21,9 @@ import {
 	withPlace,
 	type Tx
 } from './register-rows';
+import type { ImportPreview, ImportPreviewRow } from '../schemas/register-views';
+
+export type { ImportPreview, ImportPreviewRow };
 
 /** The register (optionally filtered like the list) as CSV, in code order. */
 export async function exportCsv(query: Partial<RegisterQuery> = {}): Promise<string> {
@@ -62,25 +59,6 @@ export async function exportCsv(query: Partial<RegisterQuery> = {}): Promise<str
 		notes: r.notes
 	}));
 	return toFixtureCsv(records);
-}
-
-/** One row of an import preview. */
-export interface ImportPreviewRow {
-	row: number;
-	cells: Record<CsvColumn, string>;
-	errors: CsvRowError[];
-	/** Where the fixture will go, once the row is valid. */
-	place: LocationPath | null;
-}
-
-/** What an import would do: nothing is written until `commitImport`. */
-export interface ImportPreview {
-	fileErrors: string[];
-	rows: ImportPreviewRow[];
-	/** Rows with at least one error. */
-	errorRows: number;
-	/** True when every row is valid and the file can be imported as a whole. */
-	ready: boolean;
 }
 
 async function checkImport(text: string, q: Db | Tx) {

@@ -6,10 +6,13 @@
 import { and, eq, exists, isNull, like, notExists, or, sql, type SQL } from 'drizzle-orm';
 import type { MySqlSelect } from 'drizzle-orm/mysql-core';
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
-import type { FixtureStatus, FixtureType, FlagKind } from '$lib/schemas/fixture';
+import type { FlagKind } from '$lib/schemas/fixture';
 import type { FixtureCreateInput, RegisterQuery } from '$lib/schemas/fixture-form';
 import { db, type Db } from './db';
 import { areas, fixtures, flags, locations, sites } from './db/schema';
+import type { FixtureRecord } from '../schemas/register-views';
+
+export type { FixtureRecord };
 
 /** A Drizzle transaction of the register's services. */
 export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
@@ -82,27 +85,6 @@ export function filters(query: Partial<RegisterQuery>): SQL | undefined {
 	else if (query.flag === 'none') conds.push(notExists(openFlagOf()));
 	else if (query.flag) conds.push(exists(openFlagOf(query.flag)));
 	return and(...conds);
-}
-
-/** All stored fields of a fixture, as the edit form and the API show them. */
-export interface FixtureRecord {
-	id: number;
-	code: string;
-	name: string;
-	type: FixtureType;
-	status: FixtureStatus;
-	locationId: number;
-	repeatabilitySpec_um: number | null;
-	ratedLifeCycles: number | null;
-	ballMaterial: string | null;
-	seatMaterial: string | null;
-	ballDiameter_mm: number | null;
-	preload_N: number | null;
-	mass_kg: number | null;
-	commissionedOn: string | null;
-	notes: string | null;
-	createdAt: string;
-	updatedAt: string;
 }
 
 export const recordColumns = {
