@@ -24,7 +24,8 @@ const EXPECTED: Record<Action, Role[]> = {
 	'place.edit': ['admin'],
 	'label.print': ['supervisor', 'admin'],
 	'user.admin': ['admin'],
-	'mail.view': ['admin']
+	'mail.view': ['admin'],
+	'fleet.view': ['supervisor', 'planner', 'admin']
 };
 
 const EVERYTHING: EventKind[] = [...EVENT_KINDS];

@@ -17,7 +17,8 @@ export const ACTIONS = [
 	'place.edit',
 	'label.print',
 	'user.admin',
-	'mail.view'
+	'mail.view',
+	'fleet.view'
 ] as const;
 export type Action = (typeof ACTIONS)[number];
 
@@ -32,6 +33,8 @@ export type Who = { readonly roles: readonly Role[] } | null | undefined;
 
 const OFFICE = ['supervisor', 'admin'] as const satisfies readonly Role[];
 const ADMIN = ['admin'] as const satisfies readonly Role[];
+/** The fleet board and its report: whoever watches or plans the fleet. */
+const FLEET = ['supervisor', 'planner', 'admin'] as const satisfies readonly Role[];
 
 /** Which kinds each role may log (a person with several roles may log the union). */
 export const LOG_KINDS: Readonly<Record<Role, readonly EventKind[]>> = {
@@ -57,7 +60,8 @@ export const PERMISSIONS: Readonly<Record<Action, { roles: readonly Role[]; doin
 	'place.edit': { roles: ADMIN, doing: 'add sites, areas and locations' },
 	'label.print': { roles: OFFICE, doing: 'print labels' },
 	'user.admin': { roles: ADMIN, doing: 'manage people and their roles' },
-	'mail.view': { roles: ADMIN, doing: 'read captured mail' }
+	'mail.view': { roles: ADMIN, doing: 'read captured mail' },
+	'fleet.view': { roles: FLEET, doing: 'see the fleet board' }
 };
 
 /** Whether one role may do `action` (about `subject`, where the action has one). */
