@@ -1,6 +1,7 @@
-import { error, json } from '@sveltejs/kit';
+import { error } from '@sveltejs/kit';
 import { can, refusal, type Action, type Subject } from '$lib/permissions';
 import type { Role } from '$lib/schemas/roles';
+import { apiError } from './api-answers';
 
 /** Who is acting: what every service function that changes data receives. */
 export interface Actor {
@@ -28,7 +29,7 @@ export function assertCan<A extends Action>(actor: Actor, action: A, subject?: S
 
 /** The API's one refusal answer: JSON `{ error }` with status 403. */
 export function forbiddenJson(message: string): Response {
-	return json({ error: message }, { status: 403 });
+	return apiError(403, message);
 }
 
 /** Page/action guard: 401 without a session, 403 unless the person may do `action` (if given). */
@@ -43,7 +44,7 @@ export function requireUser(locals: App.Locals, action?: Action): Actor {
  * Endpoints answer JSON errors whatever the Accept header says.
  */
 export function apiUser(locals: App.Locals, action?: Action): Actor | Response {
-	if (!locals.user) return json({ error: 'Not signed in.' }, { status: 401 });
+	if (!locals.user) return apiError(401, 'Not signed in.');
 	if (action && !can(locals.user, action)) return forbiddenJson(refusal(action));
 	return locals.user;
 }

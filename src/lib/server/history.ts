@@ -39,7 +39,7 @@ function toEntry(r: {
 		receivedAt: r.receivedAt.toISOString(),
 		deviceId: r.deviceId,
 		payload: r.payload as Record<string, unknown>,
-		// People who signed in by e-mail link may have no name (see STACK.md).
+		// Someone who signed in by e-mail link may have no name (Auth.js keeps the address only).
 		user: { id: r.userId, name: r.userName ?? r.userEmail ?? r.userId, email: r.userEmail }
 	};
 }

@@ -88,7 +88,7 @@ export interface IngestOptions {
 /** What the envelope check found: the events to judge one by one, or why the request is refused. */
 export type Envelope =
 	| { ok: true; deviceId: string; events: unknown[] }
-	| { ok: false; error: string; fields?: Record<string, string> };
+	| { ok: false; error: string; fields?: Record<string, string[]> };
 
 /**
  * Checks the request envelope only ({ deviceId, events: 1..500 }); events are judged one by one
@@ -101,7 +101,7 @@ export function parseEnvelope(body: unknown): Envelope {
 	const parsed = syncRequestSchema.safeParse(body);
 	if (parsed.success)
 		return { ok: true, deviceId: parsed.data.deviceId, events: parsed.data.events };
-	const fields: Record<string, string> = {};
+	const fields: Record<string, string[]> = {};
 	for (const issue of parsed.error.issues) {
 		const key = issue.path.length ? issue.path.join('.') : '(body)';
 		const message =
@@ -110,10 +110,10 @@ export function parseEnvelope(body: unknown): Envelope {
 				: issue.code === 'invalid_type' && issue.path[0] === 'deviceId'
 					? 'deviceId is required (a text of 1 to 100 characters)'
 					: issue.message;
-		fields[key] = fields[key] ? `${fields[key]}; ${message}` : message;
+		(fields[key] ??= []).push(message);
 	}
 	const error = Object.entries(fields)
-		.map(([k, m]) => `${k}: ${m}`)
+		.map(([k, m]) => `${k}: ${m.join('; ')}`)
 		.join('; ');
 	return { ok: false, error: `Malformed sync request — ${error}.`, fields };
 }
