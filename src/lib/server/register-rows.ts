@@ -4,12 +4,12 @@
  * register) and ./register-csv.ts (its CSV export and import).
  */
 import { and, eq, exists, isNull, like, notExists, or, sql, type SQL } from 'drizzle-orm';
-import type { MySqlSelect } from 'drizzle-orm/mysql-core';
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
 import type { FlagKind } from '$lib/schemas/fixture';
 import type { FixtureCreateInput, RegisterQuery } from '$lib/schemas/fixture-form';
 import { db, type Db } from './db';
-import { areas, fixtures, flags, locations, sites } from './db/schema';
+import { areas, fixtures, flags, locations } from './db/schema';
+export { withPlace } from './db/place-join';
 import type { FixtureRecord } from '../schemas/register-views';
 
 export type { FixtureRecord };
@@ -23,22 +23,6 @@ export class FixtureInputError extends Error {
 		super(Object.values(fields).flat().join(' '));
 		this.name = 'FixtureInputError';
 	}
-}
-
-/**
- * Joins a select from fixtures to their location, area and site (inner joins: every fixture has
- * a location, every location an area, every area a site):
- * `withPlace(db.select(cols).from(fixtures).$dynamic())`. The one place the register spells
- * this chain. Drizzle's relational queries (`db.query…findMany({ with })`) cannot, on MariaDB
- * 10.11: in the default mode they use LEFT JOIN LATERAL (a syntax error there, 1064), in
- * 'planetscale' mode correlated subqueries inside derived tables ("Unknown column
- * 'fixtures.location_id' in 'WHERE'", 1054).
- */
-export function withPlace<T extends MySqlSelect>(qb: T): T {
-	return qb
-		.innerJoin(locations, eq(locations.id, fixtures.locationId))
-		.innerJoin(areas, eq(areas.id, locations.areaId))
-		.innerJoin(sites, eq(sites.id, areas.siteId)) as unknown as T;
 }
 
 /** Backslash-escapes LIKE wildcards so a search for "50%" means the characters typed. */

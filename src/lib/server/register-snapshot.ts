@@ -7,6 +7,7 @@ import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
 import type { Actor } from './guard';
 import { indexPolicyRows, policyValues, resolvePolicy } from './policies';
 import { db, schema } from './db';
+import { withPlace } from './db/place-join';
 import { initialStateFor } from './state-store';
 
 /*
@@ -36,12 +37,10 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 			state: fixtureState
 		})
 		.from(fixtures)
-		.innerJoin(locations, eq(locations.id, fixtures.locationId))
-		.innerJoin(areas, eq(areas.id, locations.areaId))
-		.innerJoin(sites, eq(sites.id, areas.siteId))
-		.leftJoin(fixtureState, eq(fixtureState.fixtureId, fixtures.id));
+		.$dynamic();
+	const withState = withPlace(base).leftJoin(fixtureState, eq(fixtureState.fixtureId, fixtures.id));
 	const [rows, policyRows, openFlags] = await Promise.all([
-		(code ? base.where(eq(fixtures.code, code)) : base).orderBy(asc(fixtures.code)),
+		(code ? withState.where(eq(fixtures.code, code)) : withState).orderBy(asc(fixtures.code)),
 		db.select().from(policies),
 		db
 			.select({

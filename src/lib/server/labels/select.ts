@@ -1,5 +1,6 @@
 import { and, asc, count, eq, inArray, ne, type SQL } from 'drizzle-orm';
 import { db } from '../db';
+import { withPlace } from '../db/place-join';
 import { areas, fixtures, locations, sites } from '../db/schema';
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
 import { splitCodes } from '$lib/schemas/labels';
@@ -25,14 +26,9 @@ export interface LabelArea {
 const inService = ne(fixtures.status, 'retired');
 
 function base(where: SQL | undefined) {
-	return db
-		.select({ code: fixtures.code, name: fixtures.name })
-		.from(fixtures)
-		.innerJoin(locations, eq(locations.id, fixtures.locationId))
-		.innerJoin(areas, eq(areas.id, locations.areaId))
-		.innerJoin(sites, eq(sites.id, areas.siteId))
-		.where(where)
-		.$dynamic();
+	return withPlace(
+		db.select({ code: fixtures.code, name: fixtures.name }).from(fixtures).$dynamic()
+	).where(where);
 }
 
 /** Labels for `codes` in the order given (repeats kept, for one label per coupling half). */
