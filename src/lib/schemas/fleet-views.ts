@@ -56,7 +56,10 @@ export interface FleetSummary {
 	attention: {
 		/** Fixtures that match the filters and have an open flag. */
 		total: number;
-		/** The most urgent of them (at most ATTENTION_LIMIT). */
+		/** The page asked for (query.page) and its size. */
+		page: number;
+		pageSize: number;
+		/** That page of them, the most urgent first. */
 		rows: AttentionRow[];
 	};
 }
@@ -64,5 +67,5 @@ export interface FleetSummary {
 /** The board's icons: one per flag kind, and its other counts. */
 export type BoardIconName = FlagKind | 'on-hold' | 'geometry';
 
-/** Rows "Needs attention" lists at most; narrower filters show the rest. */
-export const ATTENTION_LIMIT = 500;
+/** Rows per page of "Needs attention". */
+export const ATTENTION_PAGE_SIZE = 100;

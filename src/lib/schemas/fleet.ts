@@ -36,12 +36,25 @@ export const fleetQuerySchema = z.object({
 	kind: optionalEnum('kind', FLAG_KINDS),
 	type: optionalEnum('type', FIXTURE_TYPES),
 	status: optionalEnum('status', FIXTURE_STATUSES),
-	q: z.preprocess(blank, z.string().max(100, 'Search at most 100 characters.').optional())
+	q: z.preprocess(blank, z.string().max(100, 'Search at most 100 characters.').optional()),
+	/** The page of "Needs attention" (ATTENTION_PAGE_SIZE rows each). */
+	page: z.preprocess(
+		(v) => {
+			const b = blank(v);
+			return typeof b === 'string' && /^\d+$/.test(b) ? Number(b) : b;
+		},
+		z
+			.number({ error: 'page must be a whole number from 1.' })
+			.int('page must be a whole number from 1.')
+			.min(1, 'page must be a whole number from 1.')
+			.max(100_000, 'page can be at most 100000.')
+			.default(1)
+	)
 });
 export type FleetQuery = z.output<typeof fleetQuerySchema>;
 
 /** The query's keys, in the order the URL spells them. */
-export const FLEET_QUERY_KEYS = ['area', 'kind', 'type', 'status', 'q'] as const;
+export const FLEET_QUERY_KEYS = ['area', 'kind', 'type', 'status', 'q', 'page'] as const;
 
 const rawParams = (params: URLSearchParams) =>
 	Object.fromEntries(FLEET_QUERY_KEYS.map((k) => [k, params.get(k) ?? undefined]));
@@ -74,7 +87,8 @@ export function fleetQueryRecord(query: Partial<FleetQuery>): Record<string, str
 	const out: Record<string, string> = {};
 	for (const k of FLEET_QUERY_KEYS) {
 		const v = query[k];
-		if (v !== undefined && v !== null && v !== '') out[k] = String(v);
+		// The first page is the default: links to it stay short.
+		if (v !== undefined && v !== null && v !== '' && !(k === 'page' && v === 1)) out[k] = String(v);
 	}
 	return out;
 }

@@ -10,7 +10,7 @@ import { DUE_WORK_KINDS, FLAG_URGENCY, byUrgency } from '../domain/flag-urgency'
 import type { FlagKind } from '../domain/flag-kinds';
 import type { FleetQuery } from '../schemas/fleet';
 import {
-	ATTENTION_LIMIT,
+	ATTENTION_PAGE_SIZE,
 	type AttentionRow,
 	type BoardFlag,
 	type FleetSummary,
@@ -44,7 +44,7 @@ function iso(v: unknown): string {
  * The fixtures a view covers: the register's own filters (search, area, type, status). Retired
  * fixtures need no attention, so they are left out unless asked for by status.
  */
-function fixtureFilter(query: FleetQuery): SQL | undefined {
+function fixtureFilter(query: Partial<FleetQuery>): SQL | undefined {
 	return and(
 		filters({ q: query.q, area: query.area, type: query.type, status: query.status }),
 		query.status ? undefined : ne(fixtures.status, 'retired')
@@ -56,33 +56,37 @@ const urgencyList = sql.join(
 	sql`, `
 );
 
-interface RowOptions {
-	/** Only flags of these kinds count (and are shown); default all. */
-	kinds?: readonly FlagKind[];
-	/** 'urgency': most urgent flag, then the oldest; 'oldest': the oldest flag first. */
-	order: 'urgency' | 'oldest';
-	limit: number;
-}
-
-/** Fixtures with open flags, sorted and cut to `limit`, with the total before the cut. */
-async function attention(
-	query: FleetQuery,
-	options: RowOptions
-): Promise<{ total: number; rows: AttentionRow[] }> {
-	// Per fixture: its most urgent open flag (rank in FLAG_URGENCY) and its oldest.
-	const open = db
+/** Per fixture: its most urgent open flag (rank in FLAG_URGENCY) and its oldest. */
+function openFlagsOf(query: Partial<FleetQuery>, kinds?: readonly FlagKind[]) {
+	return db
 		.select({
 			fixtureId: flags.fixtureId,
 			top: sql<number>`MIN(FIELD(${flags.kind}, ${urgencyList}))`.as('top'),
 			oldest: sql<string>`MIN(${flags.raisedAt})`.as('oldest')
 		})
 		.from(flags)
-		.where(
-			and(isNull(flags.clearedAt), options.kinds ? inArray(flags.kind, options.kinds) : undefined)
-		)
+		.where(and(isNull(flags.clearedAt), kinds ? inArray(flags.kind, kinds) : undefined))
 		.groupBy(flags.fixtureId)
 		.having(query.kind ? sql`SUM(${flags.kind} = ${query.kind}) > 0` : undefined)
 		.as('open_flags');
+}
+
+interface RowOptions {
+	/** Only flags of these kinds count (and are shown); default all. */
+	kinds?: readonly FlagKind[];
+	/** 'urgency': most urgent flag, then the oldest; 'oldest': the oldest flag first. */
+	order: 'urgency' | 'oldest';
+	limit: number;
+	/** Rows to skip (earlier pages). */
+	offset?: number;
+}
+
+/** Fixtures with open flags, sorted, one page of them, with the total before the cut. */
+async function attention(
+	query: Partial<FleetQuery>,
+	options: RowOptions
+): Promise<{ total: number; rows: AttentionRow[] }> {
+	const open = openFlagsOf(query, options.kinds);
 
 	const found = await withPlace(
 		db
@@ -112,8 +116,12 @@ async function attention(
 			asc(open.oldest),
 			asc(fixtures.code)
 		)
-		.limit(options.limit);
-	if (found.length === 0) return { total: 0, rows: [] };
+		.limit(options.limit)
+		.offset(options.offset ?? 0);
+	// Past the last page the window has no row to count on: count apart (rare; still one statement).
+	if (found.length === 0) {
+		return { total: options.offset ? await countFlagged(query, options.kinds) : 0, rows: [] };
+	}
 
 	const ids = found.map((r) => r.id);
 	const [flagRows, lastRows] = await Promise.all([
@@ -194,8 +202,25 @@ async function attention(
 	};
 }
 
+/** Fixtures with open flags that match (asked only for a page past the end). */
+async function countFlagged(
+	query: Partial<FleetQuery>,
+	kinds?: readonly FlagKind[]
+): Promise<number> {
+	const open = openFlagsOf(query, kinds);
+	const [row] = await withPlace(
+		db
+			.select({ n: sql<number>`COUNT(*)` })
+			.from(fixtures)
+			.$dynamic()
+	)
+		.innerJoin(open, eq(open.fixtureId, fixtures.id))
+		.where(fixtureFilter(query));
+	return Number(row?.n ?? 0);
+}
+
 /** Fixtures with an open flag of each kind (the flag-kind filter aside: the tiles show every kind). */
-async function countsByKind(query: FleetQuery): Promise<Map<FlagKind, number>> {
+async function countsByKind(query: Partial<FleetQuery>): Promise<Map<FlagKind, number>> {
 	const rows = await withPlace(
 		db
 			.select({ kind: flags.kind, n: sql<number>`COUNT(DISTINCT ${flags.fixtureId})` })
@@ -209,7 +234,9 @@ async function countsByKind(query: FleetQuery): Promise<Map<FlagKind, number>> {
 }
 
 /** Fixtures on hold, and fixtures whose latest saved geometry is not exactly constrained. */
-async function holdAndGeometry(query: FleetQuery): Promise<{ onHold: number; notExact: number }> {
+async function holdAndGeometry(
+	query: Partial<FleetQuery>
+): Promise<{ onHold: number; notExact: number }> {
 	// The constraint status is cached on each saved version (see ./geometry.ts); the latest counts.
 	const latest = db
 		.select({
@@ -243,25 +270,31 @@ async function holdAndGeometry(query: FleetQuery): Promise<{ onHold: number; not
 /**
  * The board: open flags by kind (most urgent kind first), fixtures on hold and with geometry that
  * is not exact, and the fixtures that need attention — most urgent flag first, then the one open
- * longest. Five statements at most, whatever the size of the fleet.
+ * longest, a page at a time. Five statements (six for a page past the end), whatever the size
+ * of the fleet.
  */
 export async function fleetSummary(
 	actor: Actor,
-	query: FleetQuery,
+	asked: Partial<FleetQuery>,
 	now: Date = new Date()
 ): Promise<FleetSummary> {
 	assertCan(actor, 'fleet.view');
+	const query: FleetQuery = { ...asked, page: asked.page ?? 1 };
 	const [counts, hold, found] = await Promise.all([
 		countsByKind(query),
 		holdAndGeometry(query),
-		attention(query, { order: 'urgency', limit: ATTENTION_LIMIT })
+		attention(query, {
+			order: 'urgency',
+			limit: ATTENTION_PAGE_SIZE,
+			offset: (query.page - 1) * ATTENTION_PAGE_SIZE
+		})
 	]);
 	return {
 		generatedAt: now.toISOString(),
 		query,
 		today: FLAG_URGENCY.map((kind) => ({ kind, count: counts.get(kind) ?? 0 })),
 		...hold,
-		attention: found
+		attention: { ...found, page: query.page, pageSize: ATTENTION_PAGE_SIZE }
 	};
 }
 

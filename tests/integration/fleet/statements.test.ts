@@ -62,7 +62,12 @@ async function growTo(total: number) {
 type Pool = { query: (...a: unknown[]) => unknown; execute: (...a: unknown[]) => unknown };
 
 /** Statements one board request sends: counted at the pool and at the server. */
-async function countStatements(): Promise<{ pool: number; server: number; rows: number }> {
+async function countStatements(): Promise<{
+	pool: number;
+	server: number;
+	rows: number;
+	total: number;
+}> {
 	const pool = getPool() as unknown as Pool;
 	const { query, execute } = pool;
 	let sent = 0;
@@ -85,7 +90,12 @@ async function countStatements(): Promise<{ pool: number; server: number; rows: 
 		const after = await questions();
 		expect(res.status).toBe(200);
 		// The second SHOW counts itself.
-		return { pool: sent, server: after - before - 1, rows: body.attention.rows.length };
+		return {
+			pool: sent,
+			server: after - before - 1,
+			rows: body.attention.rows.length,
+			total: body.attention.total
+		};
 	} finally {
 		pool.query = query;
 		pool.execute = execute;
@@ -105,12 +115,26 @@ describe('statements per board request', () => {
 		const small = await countStatements();
 		await growTo(500);
 		const large = await countStatements();
-		expect(small.rows).toBe(50);
-		expect(large.rows).toBe(500);
+		expect(small).toMatchObject({ rows: 50, total: 50 });
+		// A page of 100 rows, of all 500.
+		expect(large).toMatchObject({ rows: 100, total: 500 });
 		expect(small.pool).toBeGreaterThan(0);
 		expect(large.pool).toBe(small.pool);
 		expect(large.server).toBe(small.server);
 		// Nothing slipped past the wrapped pool (a connection of its own, say).
 		expect(small.server).toBe(small.pool);
+	});
+
+	it('pages through every fixture with an open flag, each once', async () => {
+		const { fleetSummary } = await import('$lib/server/fleet');
+		const seen: string[] = [];
+		for (let page = 1; page <= 5; page++) {
+			const s = await fleetSummary(boss, { page });
+			expect(s.attention).toMatchObject({ total: 500, page, pageSize: 100 });
+			seen.push(...s.attention.rows.map((r) => r.code));
+		}
+		expect(new Set(seen).size).toBe(500);
+		const past = await fleetSummary(boss, { page: 6 });
+		expect(past.attention).toMatchObject({ total: 500, rows: [] });
 	});
 });
