@@ -4,6 +4,7 @@
  * command line (`npm run bench -- domain`) to run only those.
  */
 import { benchDomain } from './bench/domain';
+import { benchFleet } from './bench/fleet';
 import { benchIngest } from './bench/ingest';
 import { benchScanBundle } from './bench/scan-bundle';
 import { benchScanToWaiting } from './bench/scan-to-waiting';
@@ -12,7 +13,8 @@ const SECTIONS: { name: string; run: () => Promise<unknown> }[] = [
 	{ name: 'domain', run: benchDomain },
 	{ name: 'ingest', run: benchIngest },
 	{ name: 'scan-bundle', run: benchScanBundle },
-	{ name: 'scan-to-waiting', run: benchScanToWaiting }
+	{ name: 'scan-to-waiting', run: benchScanToWaiting },
+	{ name: 'fleet', run: benchFleet }
 ];
 
 const wanted = process.argv.slice(2);

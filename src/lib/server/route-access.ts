@@ -57,6 +57,9 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 		actions: { check: 'geometry.edit', save: 'geometry.edit' }
 	},
 	'/(app)/labels': { page: 'label.print' },
+	// The fleet: the board for whoever watches or plans it; the due list for anyone.
+	'/(app)/board': { page: 'fleet.view' },
+	'/(app)/my-work': { page: 'fixture.view' },
 	'/(app)/policies': {
 		page: 'policy.edit',
 		actions: { saveType: 'policy.edit', saveOverrides: 'policy.edit' }
@@ -87,7 +90,8 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 	'/api/sync': { methods: { POST: 'event.log' } },
 	'/api/attachments/[id]': { methods: { GET: 'fixture.view', PUT: 'event.log' } },
 	'/api/attachments/[id]/thumb': { methods: { GET: 'fixture.view' } },
-	'/api/labels.pdf': { methods: { GET: 'label.print' } }
+	'/api/labels.pdf': { methods: { GET: 'label.print' } },
+	'/api/fleet/summary': { methods: { GET: 'fleet.view' } }
 };
 
 /** The form action a POST names, as SvelteKit reads it: the first `?/name`, else 'default'. */

@@ -1,0 +1,52 @@
+import AxeBuilder from '@axe-core/playwright';
+import { expect, test, type Page } from '@playwright/test';
+import { signInAs } from '../helpers/auth';
+
+/** axe-core's findings of serious or critical impact on the page as it is now. */
+async function seriousViolations(page: Page) {
+	const results = await new AxeBuilder({ page }).analyze();
+	// It looked at the page: rules passed as well.
+	expect(results.passes.length).toBeGreaterThan(0);
+	return results.violations
+		.filter((v) => v.impact === 'serious' || v.impact === 'critical')
+		.map((v) => ({
+			id: v.id,
+			impact: v.impact,
+			help: v.help,
+			nodes: v.nodes.slice(0, 5).map((n) => `${n.target.join(' ')} ${n.html.slice(0, 120)}`)
+		}));
+}
+
+test.describe('accessibility (axe-core: no serious or critical findings)', () => {
+	test('the fleet board', async ({ page }) => {
+		await signInAs(page, 'supervisor', '/board');
+		await expect(page.getByRole('heading', { name: 'Needs attention' })).toBeVisible();
+		expect(await seriousViolations(page)).toEqual([]);
+	});
+
+	test('the fleet board narrowed to one kind', async ({ page }) => {
+		await signInAs(page, 'supervisor', '/board?kind=drift');
+		await expect(page.getByRole('heading', { name: 'Needs attention' })).toBeVisible();
+		expect(await seriousViolations(page)).toEqual([]);
+	});
+
+	test('a fixture page of the demo (the drifting pallet)', async ({ page }) => {
+		// Opened as a supervisor would: from its row on the board.
+		await signInAs(page, 'supervisor', '/board?kind=drift');
+		await page
+			.getByRole('region', { name: 'Needs attention' })
+			.getByRole('row')
+			.filter({ hasText: 'DT-2 kinematic pallet B' })
+			.getByRole('link')
+			.first()
+			.click();
+		await expect(page.getByRole('heading', { name: 'DT-2 kinematic pallet B' })).toBeVisible();
+		expect(await seriousViolations(page)).toEqual([]);
+	});
+
+	test('the technician’s due work', async ({ page }) => {
+		await signInAs(page, 'technician', '/my-work');
+		await expect(page.getByRole('heading', { name: 'My work' })).toBeVisible();
+		expect(await seriousViolations(page)).toEqual([]);
+	});
+});
