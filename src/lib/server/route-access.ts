@@ -62,6 +62,9 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 		actions: { saveType: 'policy.edit', saveOverrides: 'policy.edit' }
 	},
 
+	// The fleet board (supervisors, planners, admins).
+	'/(app)/board': { page: 'fleet.view' },
+
 	// Administration.
 	'/(admin)/admin/users': {
 		page: 'user.admin',
@@ -82,6 +85,7 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 	'/api/fixtures/[code]/events': { methods: { GET: 'fixture.view' } },
 	'/api/fixtures/[code]/health': { methods: { GET: 'fixture.view' } },
 	'/api/flags': { methods: { GET: 'fixture.view' } },
+	'/api/fleet/trends': { methods: { GET: 'fleet.view' } },
 	'/api/register-snapshot': { methods: { GET: 'fixture.view' } },
 	// Per event, ingest judges the kind; a photo belongs to an inspection (attachments.ts judges).
 	'/api/sync': { methods: { POST: 'event.log' } },

@@ -98,6 +98,7 @@ const ANSWER: Record<string, number | ((who: Who) => number)> = {
 	'POST /(app)/fixtures/[code=code]/geometry ?/save': 400,
 	'GET /(app)/labels': 200,
 	'GET /(app)/policies': 200,
+	'GET /(app)/board': 200,
 	'POST /(app)/policies ?/saveType': 400,
 	'POST /(app)/policies ?/saveOverrides': 400,
 	'GET /(admin)/admin/users': 200,
@@ -115,6 +116,7 @@ const ANSWER: Record<string, number | ((who: Who) => number)> = {
 	'GET /api/fixtures/[code]/events': 200,
 	'GET /api/fixtures/[code]/health': 200,
 	'GET /api/flags': 200,
+	'GET /api/fleet/trends': 200,
 	'GET /api/register-snapshot': 200,
 	'POST /api/sync': 400,
 	// No photo has this id: the answer after the guard is "not found".
