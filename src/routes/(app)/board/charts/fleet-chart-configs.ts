@@ -135,13 +135,13 @@ export function flagWeeksConfig(t: FleetTrends): ChartConfiguration<'bar'> {
 	const weeks = t.flags.weeks;
 	const datasets = KIND_ORDER.flatMap((k) => [
 		{
-			label: `${FLAG_LABELS[k]} raised`,
+			label: FLAG_LABELS[k],
 			data: weeks.map((w) => w.raised[k]),
 			backgroundColor: KIND_COLOURS[k],
 			stack: 'flags'
 		},
 		{
-			label: `${FLAG_LABELS[k]} cleared`,
+			label: `${FLAG_LABELS[k]}, cleared`,
 			data: weeks.map((w) => -w.cleared[k]),
 			backgroundColor: `${KIND_COLOURS[k]}99`,
 			stack: 'flags'
@@ -160,12 +160,13 @@ export function flagWeeksConfig(t: FleetTrends): ChartConfiguration<'bar'> {
 						boxWidth: 10,
 						font: { size: 10 },
 						// One legend entry per kind: the raised series (the cleared one is its paler twin).
-						filter: (item) => item.text.endsWith('raised')
+						filter: (item) => (item.datasetIndex ?? 0) % 2 === 0
 					}
 				},
 				tooltip: {
 					callbacks: {
-						label: (ctx) => `${ctx.dataset.label}: ${Math.abs(Number(ctx.raw))}`,
+						label: (ctx) =>
+							`${ctx.dataset.label}${ctx.datasetIndex % 2 === 0 ? ', raised' : ''}: ${Math.abs(Number(ctx.raw))}`,
 						title: (items) => (items[0] ? weeks[items[0].dataIndex].week : '')
 					}
 				}
