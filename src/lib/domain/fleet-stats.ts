@@ -151,15 +151,12 @@ export function forecastDays(f: FleetFixture, nowMs: number): DaysForecast {
 }
 
 /** A fixture listed beside the histogram or under the forecast. */
-export interface FleetFixtureRow {
-	id: number;
-	code: string;
-	name: string;
-	areaId: number;
-	R_um: number | null;
-	spec_um: number;
+export type FleetFixtureRow = Pick<
+	FleetFixture,
+	'id' | 'code' | 'name' | 'areaId' | 'R_um' | 'spec_um'
+> & {
 	ratio: number | null;
-}
+};
 
 /** A fixture under the forecast chart: above spec now, or forecast to meet it within the horizon. */
 export interface ForecastRow extends FleetFixtureRow {

@@ -53,7 +53,7 @@ test.describe('fleet charts on the board', () => {
 			await expect(chart.getByRole('heading', { name })).toBeVisible();
 			// chart.js is loaded on demand: the canvas is there and the placeholder goes.
 			await expect(chart.locator('canvas')).toHaveCount(1);
-			await expect(chart.getByText('Drawing chart…')).toHaveCount(0);
+			await expect(chart.getByText('Loading chart…')).toHaveCount(0);
 			// The table stays in the page for screen readers, shown on request.
 			await expect(chart.getByRole('table')).toHaveCount(1);
 			await chart.getByRole('button', { name: 'Show as table' }).click();

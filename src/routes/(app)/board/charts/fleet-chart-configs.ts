@@ -35,6 +35,9 @@ const KIND_COLOURS: Record<FlagKind, string> = {
 // Every kind the domain knows has a place in the order (a new kind must be placed on purpose).
 if (KIND_ORDER.length !== FLAG_KINDS.length) throw new Error('KIND_ORDER misses a flag kind');
 
+/** Said in place of a chart when chart.js cannot be loaded. */
+export const NO_CHART = 'The chart could not be loaded; its table has every figure.';
+
 /** Two decimals for a ratio: 0.86. */
 export const ratioText = (r: number | null) => (r === null ? '—' : r.toFixed(2));
 /** R and spec in µm, three significant figures. */
