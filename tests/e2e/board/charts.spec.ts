@@ -1,4 +1,4 @@
-import { expect, test, type Page } from '@playwright/test';
+import { expect, test, type Page, type Response } from '@playwright/test';
 import mysql from 'mysql2/promise';
 import { signInAs } from '../helpers/auth';
 import { describeProblems, watchProblems } from '../helpers/page-problems';
@@ -90,11 +90,23 @@ test.describe('fleet charts on the board', () => {
 		const section = fleetCharts(page);
 		await expect(section.getByText(`for ${pallet.area}.`)).toBeVisible();
 		await expect(section.locator('canvas')).toHaveCount(4);
-		const asked = page.waitForResponse((r) => r.url().includes('/api/fleet/trends'));
-		await page.evaluate(() => window.dispatchEvent(new Event('focus')));
-		const res = await asked;
-		expect(new URL(res.url()).searchParams.get('area')).toBe(String(pallet.area_id));
-		expect(res.status()).toBe(200);
+		// Focus refreshes at most every few seconds (focus and visibility come together), so focus
+		// is given until a refresh has been asked for.
+		const answers: Response[] = [];
+		page.on('response', (r) => {
+			if (r.url().includes('/api/fleet/trends')) answers.push(r);
+		});
+		await expect
+			.poll(
+				async () => {
+					await page.evaluate(() => window.dispatchEvent(new Event('focus')));
+					return answers.length;
+				},
+				{ timeout: 20_000, intervals: [1_000] }
+			)
+			.toBeGreaterThan(0);
+		expect(new URL(answers[0].url()).searchParams.get('area')).toBe(String(pallet.area_id));
+		expect(answers[0].status()).toBe(200);
 		const areas = section.getByRole('region', { name: 'By area' });
 		await expect(areas.getByRole('rowheader')).toHaveCount(1);
 	});
