@@ -155,10 +155,17 @@ export function recentRepeatability(state: FixtureState): {
 	return bestR < 0 ? null : { R: bestR, axis: bestAxis, n: recent.length, perAxis };
 }
 
+/** What fixtureForecast reads of a state: a whole FixtureState, or just these parts of one. */
+export interface ForecastSource {
+	totalCycles: number;
+	breakIn: { required: boolean };
+	trend: { windows: readonly WindowPoint[] };
+}
+
 /** Theil–Sen forecast of windowed R against cycles, or null before FORECAST_MIN_WINDOWS windows. */
 export function fixtureForecast(
-	state: FixtureState,
-	policy: Policy
+	state: ForecastSource,
+	policy: Pick<Policy, 'repeatabilitySpec_um'>
 ): (Forecast & { cyclesToSpec: number | null; windows: number }) | null {
 	const ws = state.trend.windows;
 	if (state.breakIn.required || ws.length < FORECAST_MIN_WINDOWS) return null;

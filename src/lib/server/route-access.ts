@@ -85,13 +85,14 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 	'/api/fixtures/[code]/events': { methods: { GET: 'fixture.view' } },
 	'/api/fixtures/[code]/health': { methods: { GET: 'fixture.view' } },
 	'/api/flags': { methods: { GET: 'fixture.view' } },
+	'/api/fleet/summary': { methods: { GET: 'fleet.view' } },
+	'/api/fleet/trends': { methods: { GET: 'fleet.view' } },
 	'/api/register-snapshot': { methods: { GET: 'fixture.view' } },
 	// Per event, ingest judges the kind; a photo belongs to an inspection (attachments.ts judges).
 	'/api/sync': { methods: { POST: 'event.log' } },
 	'/api/attachments/[id]': { methods: { GET: 'fixture.view', PUT: 'event.log' } },
 	'/api/attachments/[id]/thumb': { methods: { GET: 'fixture.view' } },
-	'/api/labels.pdf': { methods: { GET: 'label.print' } },
-	'/api/fleet/summary': { methods: { GET: 'fleet.view' } }
+	'/api/labels.pdf': { methods: { GET: 'label.print' } }
 };
 
 /** The form action a POST names, as SvelteKit reads it: the first `?/name`, else 'default'. */

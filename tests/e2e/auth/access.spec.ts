@@ -118,6 +118,7 @@ const ANSWER: Record<string, number | ((who: Who) => number)> = {
 	'GET /api/fixtures/[code]/health': 200,
 	'GET /api/flags': 200,
 	'GET /api/fleet/summary': 200,
+	'GET /api/fleet/trends': 200,
 	'GET /api/register-snapshot': 200,
 	'POST /api/sync': 400,
 	// No photo has this id: the answer after the guard is "not found".

@@ -1,5 +1,7 @@
 import { parseFleetQuery } from '$lib/schemas/fleet';
+import { readFleetTrendsQuery } from '$lib/schemas/fleet-trends';
 import { fleetSummary } from '$lib/server/fleet';
+import { fleetTrends } from '$lib/server/fleet-trends';
 import { requireUser } from '$lib/server/guard';
 import * as places from '$lib/server/places';
 import type { PageServerLoad } from './$types';
@@ -8,13 +10,20 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 	const actor = requireUser(locals, 'fleet.view');
 	// A shared link with a bad value still opens: the bad filter is dropped and named on the page.
 	const { query, errors } = parseFleetQuery(url.searchParams);
-	const [summary, tree] = await Promise.all([fleetSummary(actor, query), places.tree()]);
+	// The charts follow the board's area filter over their default range (the last 12 months).
+	const trendsQuery = readFleetTrendsQuery(
+		new URLSearchParams(query.area ? { area: String(query.area) } : {})
+	);
+	const [summary, tree, trends] = await Promise.all([
+		fleetSummary(actor, query),
+		places.tree(),
+		trendsQuery.success ? fleetTrends(actor, trendsQuery.data) : null
+	]);
 	return {
 		summary,
 		query,
 		queryErrors: errors,
 		tree,
-		// The charts helper wires its data in here (see FleetCharts.svelte).
-		trends: null
+		trends
 	};
 };
