@@ -185,9 +185,7 @@ export async function flagCount(which: FlagSelection, b: ReportBounds): Promise<
 }
 
 /** The break-in-due flags of some fixtures, to judge how their runs ended. */
-export async function breakInFlags(
-	fixtureIds: readonly number[]
-): Promise<
+export async function breakInFlags(fixtureIds: readonly number[]): Promise<
 	{
 		fixture_id: number;
 		raised_at: Date;
