@@ -13,6 +13,9 @@ import {
 
 export { REPORT_MAX_DAYS };
 
+/** Rows per section the PDF lists; beyond them it says how many more the range holds. */
+export const REPORT_PDF_SECTION_ROWS = 1000;
+
 /** The report's sections, in the order they are shown. */
 export const REPORT_SECTIONS = [
 	'inspections',

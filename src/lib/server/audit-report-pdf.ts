@@ -20,7 +20,10 @@ import {
 } from '../content/audit-report';
 import { fitLines } from '../labels/sheet-layouts';
 import { sniffImage } from '../images/image-type';
-import { REPORT_SECTIONS } from '../schemas/audit-report';
+import {
+	REPORT_PDF_SECTION_ROWS as PDF_SECTION_CAP,
+	REPORT_SECTIONS
+} from '../schemas/audit-report';
 import type { AuditReport } from '../schemas/audit-report-views';
 import { readPhoto } from './attachments';
 import { sectionPages } from './audit-report';
@@ -28,8 +31,6 @@ import type { ReportBounds } from './audit-report-rows';
 import { PDF_COLUMNS, type PdfColumn } from './audit-report-pdf-columns';
 import { encodable } from './pdf-text';
 
-/** Rows per section in the PDF; beyond it the section says how many more the range holds. */
-export const PDF_SECTION_CAP = 5000;
 /** Thumbnails embedded in one PDF; further photos are counted in words. */
 const PDF_THUMB_CAP = 150;
 
@@ -50,6 +51,23 @@ interface Fonts {
 	bold: PDFFont;
 }
 
+// pdf-lib adds a font resource to the page on every drawText that names a font; thousands of
+// lines a page made large, slow documents. Switch the page's font only when it changes.
+const pageFonts = new WeakMap<PDFPage, PDFFont>();
+
+/** Draws one line of text (already encodable) at (x, y) in `font`. */
+function put(
+	page: PDFPage,
+	text: string,
+	o: { x: number; y: number; size: number; font: PDFFont; color: ReturnType<typeof rgb> }
+) {
+	if (pageFonts.get(page) !== o.font) {
+		page.setFont(o.font);
+		pageFonts.set(page, o.font);
+	}
+	page.drawText(text, { x: o.x, y: o.y, size: o.size, color: o.color });
+}
+
 /** Lays out pages top to bottom, starting a new page when the next block does not fit. */
 class Layout {
 	page!: PDFPage;
@@ -67,17 +85,36 @@ class Layout {
 	fits(height: number) {
 		return this.y - height >= MARGIN.bottom;
 	}
-	text(s: string, x: number, size = SIZE, font = this.fonts.regular, color = INK) {
-		this.page.drawText(encodable(font, s), { x, y: this.y - size, size, font, color });
-	}
-	/** A paragraph wrapped to the width; returns the lines drawn. */
+	/** A paragraph wrapped to the width. */
 	paragraph(s: string, size = SIZE, font = this.fonts.regular, color = INK) {
-		for (const line of wrap(s, WIDTH, (t) => font.widthOfTextAtSize(encodable(font, t), size))) {
+		for (const line of wrap(encodable(font, s), WIDTH, measurer(font, size))) {
 			if (!this.fits(size * 1.3)) this.newPage();
-			this.text(line, MARGIN.left, size, font, color);
+			put(this.page, line, { x: MARGIN.left, y: this.y - size, size, font, color });
 			this.y -= size * 1.3;
 		}
 	}
+}
+
+const widths = new WeakMap<PDFFont, Map<string, number>>();
+
+/**
+ * Width of encodable text at `size`: the sum of its characters' advance widths (the standard
+ * fonts are not kerned by pdf-lib), cached per character, since wrapping measures every line
+ * many times.
+ */
+function measurer(font: PDFFont, size: number): (t: string) => number {
+	let table = widths.get(font);
+	if (!table) widths.set(font, (table = new Map()));
+	const per = table;
+	return (t) => {
+		let w = 0;
+		for (const ch of t) {
+			let cw = per.get(ch);
+			if (cw === undefined) per.set(ch, (cw = font.widthOfTextAtSize(ch, 1)));
+			w += cw;
+		}
+		return w * size;
+	};
 }
 
 /** Lines of `s` (its own line breaks kept) that fit `width`. */
@@ -100,12 +137,14 @@ async function drawTable<T>(
 	const measure = (font: PDFFont) => (t: string) =>
 		font.widthOfTextAtSize(encodable(font, t), SIZE);
 	const header = () => {
-		const cells = columns.map((c, i) => wrap(c.title, widths[i] - 2 * PAD, measure(L.fonts.bold)));
+		const cells = columns.map((c, i) =>
+			wrap(encodable(L.fonts.bold, c.title), widths[i] - 2 * PAD, measure(L.fonts.bold))
+		);
 		const h = Math.max(...cells.map((l) => l.length)) * LEAD + 2 * PAD;
 		L.page.drawRectangle({ x: MARGIN.left, y: L.y - h, width: WIDTH, height: h, color: HEAD_FILL });
 		cells.forEach((lines, i) =>
 			lines.forEach((line, j) =>
-				L.page.drawText(encodable(L.fonts.bold, line), {
+				put(L.page, line, {
 					x: xs[i] + PAD,
 					y: L.y - PAD - (j + 1) * LEAD + 2.5,
 					size: SIZE,
@@ -121,7 +160,13 @@ async function drawTable<T>(
 		for (const row of batch) {
 			const pics = await images(row);
 			const cells = columns.map((c, i) =>
-				c.photos ? [] : wrap(c.cell(row), widths[i] - 2 * PAD, measure(L.fonts.regular))
+				c.photos
+					? []
+					: wrap(
+							encodable(L.fonts.regular, c.cell(row)),
+							widths[i] - 2 * PAD,
+							measure(L.fonts.regular)
+						)
 			);
 			const textH = Math.max(1, ...cells.map((l) => l.length)) * LEAD;
 			const h = Math.max(textH, pics.length ? THUMB : 0) + 2 * PAD;
@@ -131,7 +176,7 @@ async function drawTable<T>(
 			}
 			cells.forEach((lines, i) =>
 				lines.forEach((line, j) =>
-					L.page.drawText(encodable(L.fonts.regular, line), {
+					put(L.page, line, {
 						x: xs[i] + PAD,
 						y: L.y - PAD - (j + 1) * LEAD + 2.5,
 						size: SIZE,
@@ -151,7 +196,7 @@ async function drawTable<T>(
 				}
 				const rest = columns[photoCol].cell(row);
 				if (rest) {
-					L.page.drawText(encodable(L.fonts.regular, rest), {
+					put(L.page, encodable(L.fonts.regular, rest), {
 						x: xs[photoCol] + PAD,
 						y: L.y - PAD - (pics.length ? THUMB + LEAD : LEAD) + 2.5,
 						size: SIZE - 1,
@@ -203,7 +248,7 @@ function drawRunningLines(doc: PDFDocument, fonts: Fonts, report: AuditReport) {
 		const draw = (s: string, x: number, y: number, alignRight = false) => {
 			const t = encodable(fonts.regular, s);
 			const w = fonts.regular.widthOfTextAtSize(t, size);
-			page.drawText(t, { x: alignRight ? x - w : x, y, size, font: fonts.regular, color: SOFT });
+			put(page, t, { x: alignRight ? x - w : x, y, size, font: fonts.regular, color: SOFT });
 		};
 		draw(left, MARGIN.left, A4[1] - 36);
 		draw(right, A4[0] - MARGIN.right, A4[1] - 36, true);
@@ -271,7 +316,8 @@ export async function renderAuditReportPdf(
 		await drawTable(
 			L,
 			columns,
-			sectionPages(section, bounds, { cap: PDF_SECTION_CAP }),
+			// Small pages: the layout yields to other requests between them.
+			sectionPages(section, bounds, { pageRows: 100, cap: PDF_SECTION_CAP }),
 			section === 'inspections'
 				? (row) => thumbs((row as { photoIds: string[] }).photoIds)
 				: async () => []

@@ -17,6 +17,7 @@ import { dayOf, rangeInstants, rangeWords } from '../domain/report-range';
 import { FLAG_LABELS, type FlagKind } from '../schemas/fixture';
 import {
 	REPORT_CURSOR,
+	REPORT_PDF_SECTION_ROWS,
 	REPORT_SECTIONS,
 	reportCursor,
 	type ReportQuery,
@@ -315,7 +316,7 @@ export async function auditReport(
 export async function* sectionPages(
 	section: ReportSection,
 	bounds: ReportBounds,
-	{ pageRows = 500, cap = 5000 }: { pageRows?: number; cap?: number } = {}
+	{ pageRows = 500, cap = REPORT_PDF_SECTION_ROWS }: { pageRows?: number; cap?: number } = {}
 ): AsyncGenerator<ReportSections[ReportSection]['rows']> {
 	let after: rows.After | null = null;
 	let seen = 0;

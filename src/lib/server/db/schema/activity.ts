@@ -43,8 +43,9 @@ export const events = mysqlTable(
 		index('events_fixture_received_idx').on(t.fixtureId, t.receivedAt),
 		index('events_user_idx').on(t.userId, t.receivedAt),
 		// The audit report reads one kind over a date range across the fleet (inspections, runs,
-		// swaps, holds) without touching the far more numerous reseats.
-		index('events_kind_occurred_idx').on(t.kind, t.occurredAt)
+		// swaps, holds) without touching the far more numerous reseats, in (occurred_at, id) order,
+		// and filters by area through fixture_id without reading the rows themselves.
+		index('events_kind_occurred_idx').on(t.kind, t.occurredAt, t.id, t.fixtureId)
 	]
 );
 

@@ -17,8 +17,8 @@ const badQuery = (fields: Record<string, string[]>) =>
 	);
 
 /**
- * `GET /board/report.pdf?from=&to=&area=`: the whole audit report (every section, up to 5,000
- * rows each) as a PDF download named after its range.
+ * `GET /board/report.pdf?from=&to=&area=`: the whole audit report (every section, up to
+ * REPORT_PDF_SECTION_ROWS rows each) as a PDF download named after its range.
  */
 export const GET: RequestHandler = async ({ locals, url }) => {
 	const actor = requireUser(locals, 'fleet.view');
