@@ -1,20 +1,11 @@
 /**
  * The audit report: for a range of days and optionally an area, what was inspected, the break-in
  * runs, part swaps, holds and releases, flags raised and cleared, and the fixtures overdue at the
- * range's end. Built a page at a time per section (see audit-report-rows.ts); `sectionPages`
- * walks a whole section for the PDF, still a page per query.
+ * range's end. Built a page at a time per section (reads in audit-report-rows.ts, rows in words
+ * in audit-report-map.ts); `sectionPages` walks a whole section for the PDF, still a page per query.
  */
-import {
-	RUN_OUTCOME_WORDS,
-	clearedByWords,
-	finalRWords,
-	openForWords,
-	runOutcome
-} from '../domain/audit-words';
-import { breakInCurve, type CurveReading } from '../domain/break-in-curves';
-import { eventDetails, gradeWords } from '../domain/event-details';
+import { clearedByWords, openForWords } from '../domain/audit-words';
 import { dayOf, rangeInstants, rangeWords } from '../domain/report-range';
-import { FLAG_LABELS, type FlagKind } from '../schemas/fixture';
 import {
 	REPORT_CURSOR,
 	REPORT_PDF_SECTION_ROWS,
@@ -25,28 +16,29 @@ import {
 } from '../schemas/audit-report';
 import type {
 	AuditReport,
-	BreakInRow,
 	FlagClearedRow,
 	FlagRaisedRow,
-	HoldRow,
-	InspectionRow,
 	OverdueRow,
-	PartSwapRow,
-	ReportFixture,
 	ReportPage,
 	ReportSections
 } from '../schemas/audit-report-views';
+import {
+	breakInRows,
+	flagBase,
+	holdRow,
+	inspectionRow,
+	iso,
+	partSwapRow
+} from './audit-report-map';
 import * as rows from './audit-report-rows';
-import type { EventRowData, FixtureColumns, FlagRowData, ReportBounds } from './audit-report-rows';
+import type { FlagRowData, ReportBounds } from './audit-report-rows';
 import { scanOnRead } from './due-scan';
 import { assertCan, type Actor } from './guard';
-import { loadHealthFixtures } from './health';
-import { policiesFor } from './state-store';
 
 /** Rows per section on one page of the report. */
 export const REPORT_PAGE_ROWS = 100;
 
-const EVENT_KINDS: Record<'inspections' | 'break-in' | 'part-swaps' | 'holds', string[]> = {
+const SECTION_EVENT_KINDS: Record<'inspections' | 'break-in' | 'part-swaps' | 'holds', string[]> = {
 	inspections: ['inspection'],
 	'break-in': ['break-in'],
 	'part-swaps': ['part-swap'],
@@ -58,134 +50,17 @@ const FLAG_SELECTION = {
 	overdue: 'overdue'
 } as const;
 
-const iso = (d: Date) => d.toISOString();
-const fixtureOf = (r: FixtureColumns): ReportFixture => ({
-	code: r.code,
-	name: r.name,
-	area: r.area,
-	location: r.location
-});
-const text = (v: unknown) => (typeof v === 'string' && v.trim() ? v.trim() : null);
-const kindWords = (k: string) => FLAG_LABELS[k as FlagKind] ?? k;
-const noPlace = (id: string) => `location ${id}`;
-
-function inspectionRow(r: EventRowData): InspectionRow {
-	const p = r.payload;
-	const d = eventDetails('inspection', p, noPlace);
-	const contacts = Array.isArray(p.contacts) ? (p.contacts as Record<string, unknown>[]) : [];
-	return {
-		eventId: r.id,
-		occurredAt: iso(r.occurred_at),
-		fixture: fixtureOf(r),
-		by: r.by_name,
-		verdict: text(p.verdict),
-		summary: d.summary,
-		contacts: contacts.map((c) => {
-			const grade = typeof c?.grade === 'number' ? c.grade : null;
-			const marks = Array.isArray(c?.marks) ? (c.marks as unknown[]).filter(text) : [];
-			return {
-				contact: text(c?.contact) ?? 'Contact',
-				grade,
-				words: [grade === null ? 'not graded' : gradeWords(grade), ...marks].join(', ')
-			};
-		}),
-		note: text(p.note),
-		photoIds: d.photoIds
-	};
-}
-
-async function breakInRows(list: EventRowData[]): Promise<BreakInRow[]> {
-	const ids = [...new Set(list.map((r) => r.fixture_id))];
-	// Reads one after the other: each takes its own pooled connection and gives it back.
-	const fixtures = await loadHealthFixtures(ids);
-	const policies = await policiesFor(fixtures);
-	const flags = await rows.breakInFlags(ids);
-	return list.map((r) => {
-		const policy = policies.get(r.fixture_id);
-		const spec = policy?.repeatabilitySpec_um ?? 1;
-		const window = policy?.settleWindow ?? 10;
-		const readings = Array.isArray(r.payload.readings)
-			? (r.payload.readings as CurveReading[])
-			: [];
-		const cycles = typeof r.payload.cycles === 'number' ? r.payload.cycles : readings.length;
-		let finalR: number | null = null;
-		try {
-			const points = breakInCurve(
-				readings,
-				Math.max(cycles, readings.length, 1),
-				window,
-				spec
-			).points;
-			finalR = points.length ? points[points.length - 1].R : null;
-		} catch {
-			// A payload the curve cannot read (stored under an older shape) has no final R.
-		}
-		const outcome = runOutcome(
-			{ id: r.id, receivedAtMs: r.received_at.getTime() },
-			flags
-				.filter((f) => f.fixture_id === r.fixture_id)
-				.map((f) => ({
-					raisedAtMs: f.raised_at.getTime(),
-					clearedAtMs: f.cleared_at?.getTime() ?? null,
-					clearedByEventId: f.cleared_by_event_id
-				}))
-		);
-		return {
-			eventId: r.id,
-			occurredAt: iso(r.occurred_at),
-			fixture: fixtureOf(r),
-			by: r.by_name,
-			cycles,
-			readings: readings.length,
-			finalR_um: finalR,
-			spec_um: spec,
-			window,
-			finalRWords: finalRWords(finalR, spec, readings.length, window),
-			outcome,
-			outcomeWords: RUN_OUTCOME_WORDS[outcome],
-			note: text(r.payload.note)
-		};
-	});
-}
-
-function partSwapRow(r: EventRowData): PartSwapRow {
-	const d = eventDetails('part-swap', r.payload, noPlace);
-	const base = { eventId: r.id, occurredAt: iso(r.occurred_at), fixture: fixtureOf(r) };
-	return { ...base, by: r.by_name, summary: d.summary, details: d.lines };
-}
-
-function holdRow(r: EventRowData): HoldRow {
-	const kind = r.kind === 'release' ? 'release' : 'hold';
-	const reason =
-		kind === 'hold'
-			? (text(r.payload.reason) ?? 'No reason given')
-			: (text(r.payload.note) ?? 'Back in service (no note)');
-	const base = { eventId: r.id, occurredAt: iso(r.occurred_at), fixture: fixtureOf(r) };
-	return { ...base, by: r.by_name, kind, reason };
-}
-
-function flagBase(r: FlagRowData) {
-	return {
-		id: r.id,
-		kind: r.kind,
-		kindWords: kindWords(r.kind),
-		fixture: fixtureOf(r),
-		raisedAt: iso(r.raised_at),
-		reason: r.reason
-	};
-}
-
 /** One page of a section's rows, with the cursor of the row after which the next page starts. */
 async function sectionRows(
 	section: ReportSection,
 	b: ReportBounds,
 	after: rows.After | null,
 	limit: number
-): Promise<{ rows: ReportSections[ReportSection]['rows']; last: string | null; full: boolean }> {
-	if (section in EVENT_KINDS) {
+): Promise<{ rows: ReportSections[ReportSection]['rows']; last: string | null; more: boolean }> {
+	if (section in SECTION_EVENT_KINDS) {
 		// One row more than the page, to know whether another page follows.
 		const read = await rows.eventPage(
-			EVENT_KINDS[section as keyof typeof EVENT_KINDS],
+			SECTION_EVENT_KINDS[section as keyof typeof SECTION_EVENT_KINDS],
 			b,
 			after,
 			limit + 1
@@ -201,7 +76,7 @@ async function sectionRows(
 					: section === 'part-swaps'
 						? list.map(partSwapRow)
 						: list.map(holdRow);
-		return { rows: out, last: cursor, full: read.length > limit };
+		return { rows: out, last: cursor, more: read.length > limit };
 	}
 	const which = FLAG_SELECTION[section as keyof typeof FLAG_SELECTION];
 	const read = await rows.flagPage(which, b, after, limit + 1);
@@ -228,12 +103,12 @@ async function sectionRows(
 						...flagBase(r),
 						openFor: openForWords(r.raised_at.getTime(), b.end.getTime())
 					}));
-	return { rows: out, last: cursor, full: read.length > limit };
+	return { rows: out, last: cursor, more: read.length > limit };
 }
 
 function countOf(section: ReportSection, b: ReportBounds): Promise<number> {
-	return section in EVENT_KINDS
-		? rows.eventCount(EVENT_KINDS[section as keyof typeof EVENT_KINDS], b)
+	return section in SECTION_EVENT_KINDS
+		? rows.eventCount(SECTION_EVENT_KINDS[section as keyof typeof SECTION_EVENT_KINDS], b)
 		: rows.flagCount(FLAG_SELECTION[section as keyof typeof FLAG_SELECTION], b);
 }
 
@@ -290,7 +165,7 @@ export async function auditReport(
 		(sections as Record<string, ReportPage<unknown>>)[section] = {
 			total,
 			rows: page.rows,
-			next: page.full ? page.last : null
+			next: page.more ? page.last : null
 		};
 	}
 	return {
@@ -324,7 +199,7 @@ export async function* sectionPages(
 		const page = await sectionRows(section, bounds, after, Math.min(pageRows, cap - seen));
 		if (page.rows.length) yield page.rows;
 		seen += page.rows.length;
-		if (!page.full || !page.last) return;
+		if (!page.more || !page.last) return;
 		after = parseAfter(page.last);
 	}
 }
