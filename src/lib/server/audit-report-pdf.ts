@@ -134,25 +134,27 @@ async function drawTable<T>(
 	const total = columns.reduce((n, c) => n + c.width, 0);
 	const widths = columns.map((c) => (c.width / total) * WIDTH);
 	const xs = widths.map((_, i) => MARGIN.left + widths.slice(0, i).reduce((a, b) => a + b, 0));
-	const measure = (font: PDFFont) => (t: string) =>
-		font.widthOfTextAtSize(encodable(font, t), SIZE);
-	const header = () => {
-		const cells = columns.map((c, i) =>
-			wrap(encodable(L.fonts.bold, c.title), widths[i] - 2 * PAD, measure(L.fonts.bold))
-		);
-		const h = Math.max(...cells.map((l) => l.length)) * LEAD + 2 * PAD;
-		L.page.drawRectangle({ x: MARGIN.left, y: L.y - h, width: WIDTH, height: h, color: HEAD_FILL });
+	const measure = (font: PDFFont) => measurer(font, SIZE);
+	// Each cell's lines, top-aligned in its column, on the row that starts at L.y.
+	const drawCells = (cells: string[][], font: PDFFont) =>
 		cells.forEach((lines, i) =>
 			lines.forEach((line, j) =>
 				put(L.page, line, {
 					x: xs[i] + PAD,
 					y: L.y - PAD - (j + 1) * LEAD + 2.5,
 					size: SIZE,
-					font: L.fonts.bold,
+					font,
 					color: INK
 				})
 			)
 		);
+	const header = () => {
+		const cells = columns.map((c, i) =>
+			wrap(encodable(L.fonts.bold, c.title), widths[i] - 2 * PAD, measure(L.fonts.bold))
+		);
+		const h = Math.max(...cells.map((l) => l.length)) * LEAD + 2 * PAD;
+		L.page.drawRectangle({ x: MARGIN.left, y: L.y - h, width: WIDTH, height: h, color: HEAD_FILL });
+		drawCells(cells, L.fonts.bold);
 		L.y -= h;
 	};
 	header();
@@ -174,17 +176,7 @@ async function drawTable<T>(
 				L.newPage();
 				header();
 			}
-			cells.forEach((lines, i) =>
-				lines.forEach((line, j) =>
-					put(L.page, line, {
-						x: xs[i] + PAD,
-						y: L.y - PAD - (j + 1) * LEAD + 2.5,
-						size: SIZE,
-						font: L.fonts.regular,
-						color: INK
-					})
-				)
-			);
+			drawCells(cells, L.fonts.regular);
 			const photoCol = columns.findIndex((c) => c.photos);
 			if (photoCol >= 0) {
 				let x = xs[photoCol] + PAD;

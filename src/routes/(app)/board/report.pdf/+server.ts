@@ -2,10 +2,8 @@ import { parseReportQuery } from '$lib/schemas/audit-report';
 import { auditReport } from '$lib/server/audit-report';
 import { renderAuditReportPdf } from '$lib/server/audit-report-pdf';
 import { requireUser } from '$lib/server/guard';
+import { pdfDownload } from '$lib/server/pdf-download';
 import type { RequestHandler } from './$types';
-
-// Sent in pieces so a browser can show download progress on a slow network.
-const CHUNK = 64 * 1024;
 
 const badQuery = (fields: Record<string, string[]>) =>
 	new Response(
@@ -32,20 +30,5 @@ export const GET: RequestHandler = async ({ locals, url }) => {
 
 	const bytes = await renderAuditReportPdf(result.report, result.bounds);
 	const area = query.area === null ? '' : `-area-${query.area}`;
-	let offset = 0;
-	const body = new ReadableStream<Uint8Array>({
-		pull(controller) {
-			if (offset >= bytes.length) return controller.close();
-			controller.enqueue(bytes.subarray(offset, offset + CHUNK));
-			offset += CHUNK;
-		}
-	});
-	return new Response(body, {
-		headers: {
-			'Content-Type': 'application/pdf',
-			'Content-Length': String(bytes.length),
-			'Content-Disposition': `attachment; filename="nestmark-audit-${query.from}-${query.to}${area}.pdf"`,
-			'Cache-Control': 'private, no-store'
-		}
-	});
+	return pdfDownload(bytes, `nestmark-audit-${query.from}-${query.to}${area}.pdf`);
 };
