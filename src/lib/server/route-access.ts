@@ -65,6 +65,10 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 		actions: { saveType: 'policy.edit', saveOverrides: 'policy.edit' }
 	},
 
+	// Fleet health: the audit report and its PDF.
+	'/(app)/board/report': { page: 'fleet.view' },
+	'/(app)/board/report.pdf': { methods: { GET: 'fleet.view' } },
+
 	// Administration.
 	'/(admin)/admin/users': {
 		page: 'user.admin',

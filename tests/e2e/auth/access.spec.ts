@@ -102,6 +102,8 @@ const ANSWER: Record<string, number | ((who: Who) => number)> = {
 	'GET /(app)/policies': 200,
 	'POST /(app)/policies ?/saveType': 400,
 	'POST /(app)/policies ?/saveOverrides': 400,
+	'GET /(app)/board/report': 200,
+	'GET /(app)/board/report.pdf': 200,
 	'GET /(admin)/admin/users': 200,
 	'POST /(admin)/admin/users ?/invite': 400,
 	'POST /(admin)/admin/users ?/roles': 400,

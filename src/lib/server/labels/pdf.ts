@@ -24,6 +24,7 @@ import {
 	type LabelCell,
 	type SheetLayout
 } from '$lib/labels/sheet-layouts';
+import { encodable } from '../pdf-text';
 import { QR_QUIET_ZONE, darkRuns, labelQrMatrix } from './qr';
 
 /** What one label shows. */
@@ -131,18 +132,6 @@ function markXObject(doc: PDFDocument): PDFRef {
 		Resources: {}
 	});
 	return doc.context.register(stream);
-}
-
-// Look-alikes the standard fonts' WinAnsi encoding does have, for signs common in fixture names.
-const SUBSTITUTES: Record<string, string> = { '⌀': 'Ø', '−': '-', '≤': '<=', '≥': '>=', '′': "'" };
-
-/** Characters the font cannot encode (WinAnsi) become "?" rather than failing the whole sheet. */
-function encodable(font: PDFFont, text: string): string {
-	const set = new Set(font.getCharacterSet());
-	return [...text.normalize('NFC')]
-		.map((ch) => SUBSTITUTES[ch] ?? ch)
-		.map((ch) => (set.has(ch.codePointAt(0)!) ? ch : '?'))
-		.join('');
 }
 
 interface Fonts {

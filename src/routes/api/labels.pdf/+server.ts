@@ -5,10 +5,8 @@ import { apiUser } from '$lib/server/guard';
 import { renderLabelsPdf } from '$lib/server/labels/pdf';
 import { labelOrigin } from '$lib/server/labels/qr';
 import * as select from '$lib/server/labels/select';
+import { pdfDownload } from '$lib/server/pdf-download';
 import type { RequestHandler } from './$types';
-
-// Sent in pieces so a browser can show download progress on a slow network.
-const CHUNK = 64 * 1024;
 
 const badRequest = (fields: Record<string, string | string[]>) =>
 	apiError(400, 'Check the label settings.', fields);
@@ -45,22 +43,8 @@ export const GET: RequestHandler = async ({ locals, url }) => {
 		startAt,
 		origin: labelOrigin(url.origin)
 	});
-	let offset = 0;
-	const body = new ReadableStream<Uint8Array>({
-		pull(controller) {
-			if (offset >= bytes.length) return controller.close();
-			controller.enqueue(bytes.subarray(offset, offset + CHUNK));
-			offset += CHUNK;
-		}
-	});
-	return new Response(body, {
-		headers: {
-			'Content-Type': 'application/pdf',
-			'Content-Length': String(bytes.length),
-			'Content-Disposition': `attachment; filename="${select.labelFileName(job.what, stock, paper)}"`,
-			'Cache-Control': 'private, no-store',
-			'X-Label-Count': String(labels.length),
-			'X-Sheet-Count': String(sheetsNeeded(labels.length, layout.perSheet, startAt))
-		}
+	return pdfDownload(bytes, select.labelFileName(job.what, stock, paper), {
+		'X-Label-Count': String(labels.length),
+		'X-Sheet-Count': String(sheetsNeeded(labels.length, layout.perSheet, startAt))
 	});
 };

@@ -41,7 +41,11 @@ export const events = mysqlTable(
 	(t) => [
 		index('events_fixture_occurred_idx').on(t.fixtureId, t.occurredAt),
 		index('events_fixture_received_idx').on(t.fixtureId, t.receivedAt),
-		index('events_user_idx').on(t.userId, t.receivedAt)
+		index('events_user_idx').on(t.userId, t.receivedAt),
+		// The audit report reads one kind over a date range across the fleet (inspections, runs,
+		// swaps, holds) without touching the far more numerous reseats, in (occurred_at, id) order,
+		// and filters by area through fixture_id without reading the rows themselves.
+		index('events_kind_occurred_idx').on(t.kind, t.occurredAt, t.id, t.fixtureId)
 	]
 );
 
@@ -91,7 +95,10 @@ export const flags = mysqlTable(
 	},
 	(t) => [
 		index('flags_fixture_open_idx').on(t.fixtureId, t.clearedAt),
-		index('flags_kind_open_idx').on(t.kind, t.clearedAt)
+		index('flags_kind_open_idx').on(t.kind, t.clearedAt),
+		// The audit report: flags raised, and flags cleared, within a date range.
+		index('flags_raised_idx').on(t.raisedAt),
+		index('flags_cleared_idx').on(t.clearedAt)
 	]
 );
 
