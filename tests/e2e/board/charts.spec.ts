@@ -111,6 +111,16 @@ test.describe('fleet charts on the board', () => {
 		await expect(areas.getByRole('rowheader')).toHaveCount(1);
 	});
 
+	test('charts the server could not give are asked for in the browser, and the reason shown', async ({
+		page
+	}) => {
+		await signInAs(page, 'supervisor', '/board?area=999999');
+		await expect(fleetCharts(page).getByRole('alert')).toHaveText(
+			'■ The fleet charts could not be loaded: There is no area with id 999999. They are tried again every minute.'
+		);
+		await expect(fleetCharts(page).locator('canvas')).toHaveCount(0);
+	});
+
 	test('without JavaScript each chart is its heading, its sentence and its table', async ({
 		browser
 	}) => {
