@@ -5,7 +5,7 @@
  * (fixture_id, occurred_at) index). A summary costs the same few statements whatever the size of
  * the fleet: no statement per fixture, no fold or aggregate over the event log.
  */
-import { and, asc, eq, inArray, isNull, max, ne, sql, type SQL } from 'drizzle-orm';
+import { and, asc, eq, inArray, isNull, ne, sql, type SQL } from 'drizzle-orm';
 import { DUE_WORK_KINDS, FLAG_URGENCY, byUrgency } from '../domain/flag-urgency';
 import type { FlagKind } from '../domain/flag-kinds';
 import type { FleetQuery } from '../schemas/fleet';
@@ -219,58 +219,48 @@ async function countFlagged(
 	return Number(row?.n ?? 0);
 }
 
-/** Fixtures with an open flag of each kind (the flag-kind filter aside: the tiles show every kind). */
-async function countsByKind(query: Partial<FleetQuery>): Promise<Map<FlagKind, number>> {
-	const rows = await withPlace(
-		db
-			.select({ kind: flags.kind, n: sql<number>`COUNT(DISTINCT ${flags.fixtureId})` })
-			.from(fixtures)
-			.$dynamic()
-	)
-		.innerJoin(flags, and(eq(flags.fixtureId, fixtures.id), isNull(flags.clearedAt)))
-		.where(fixtureFilter(query))
-		.groupBy(flags.kind);
-	return new Map(rows.map((r) => [r.kind, Number(r.n)]));
-}
-
-/** Fixtures on hold, and fixtures whose latest saved geometry is not exactly constrained. */
-async function holdAndGeometry(
+/**
+ * The tiles, in one statement: fixtures with an open flag of each kind (the flag-kind filter
+ * aside: the tiles show every kind), fixtures on hold, and fixtures whose latest saved geometry is
+ * not exactly constrained (its constraint status is cached on each saved version, ./geometry.ts).
+ */
+async function tileCounts(
 	query: Partial<FleetQuery>
-): Promise<{ onHold: number; notExact: number }> {
-	// The constraint status is cached on each saved version (see ./geometry.ts); the latest counts.
-	const latest = db
-		.select({
-			fixtureId: couplingGeometries.fixtureId,
-			v: max(couplingGeometries.version).as('v')
-		})
-		.from(couplingGeometries)
-		.groupBy(couplingGeometries.fixtureId)
-		.as('latest_geometry');
-	const [row] = await withPlace(
-		db
-			.select({
-				onHold: sql<number>`COALESCE(SUM(${fixtures.status} = 'on-hold'), 0)`,
-				notExact: sql<number>`COALESCE(SUM(${couplingGeometries.constraintStatus} <> 'exact'), 0)`
-			})
-			.from(fixtures)
-			.$dynamic()
-	)
-		.leftJoin(latest, eq(latest.fixtureId, fixtures.id))
-		.leftJoin(
-			couplingGeometries,
-			and(
-				eq(couplingGeometries.fixtureId, latest.fixtureId),
-				eq(couplingGeometries.version, latest.v)
-			)
-		)
-		.where(fixtureFilter(query));
-	return { onHold: Number(row?.onHold ?? 0), notExact: Number(row?.notExact ?? 0) };
+): Promise<{ byKind: Map<FlagKind, number>; onHold: number; notExact: number }> {
+	const where = fixtureFilter(query) ?? sql`TRUE`;
+	// The filters read the location only for an area (never the area or site rows themselves).
+	const place = query.area
+		? sql`JOIN ${locations} ON ${locations.id} = ${fixtures.locationId}`
+		: sql``;
+	const [rows] = (await db.execute(sql`
+		SELECT ${flags.kind} AS k, COUNT(DISTINCT ${flags.fixtureId}) AS n
+		  FROM ${fixtures} ${place}
+		  JOIN ${flags} ON ${flags.fixtureId} = ${fixtures.id} AND ${flags.clearedAt} IS NULL
+		 WHERE ${where}
+		 GROUP BY ${flags.kind}
+		UNION ALL
+		SELECT 'on-hold', COUNT(*) FROM ${fixtures} ${place}
+		 WHERE ${where} AND ${fixtures.status} = 'on-hold'
+		UNION ALL
+		SELECT 'not-exact', COUNT(*) FROM ${fixtures} ${place}
+		  JOIN ${couplingGeometries} ON ${couplingGeometries.fixtureId} = ${fixtures.id}
+		   AND ${couplingGeometries.version} = (
+		     SELECT MAX(g.version) FROM ${couplingGeometries} g WHERE g.fixture_id = ${fixtures.id})
+		 WHERE ${where} AND ${couplingGeometries.constraintStatus} <> 'exact'`)) as unknown as [
+		{ k: string; n: number | string }[]
+	];
+	const counts = new Map(rows.map((r) => [r.k, Number(r.n)]));
+	return {
+		byKind: new Map(FLAG_URGENCY.map((kind) => [kind, counts.get(kind) ?? 0])),
+		onHold: counts.get('on-hold') ?? 0,
+		notExact: counts.get('not-exact') ?? 0
+	};
 }
 
 /**
  * The board: open flags by kind (most urgent kind first), fixtures on hold and with geometry that
  * is not exact, and the fixtures that need attention — most urgent flag first, then the one open
- * longest, a page at a time. Five statements (six for a page past the end), whatever the size
+ * longest, a page at a time. Four statements (five for a page past the end), whatever the size
  * of the fleet.
  */
 export async function fleetSummary(
@@ -280,9 +270,8 @@ export async function fleetSummary(
 ): Promise<FleetSummary> {
 	assertCan(actor, 'fleet.view');
 	const query: FleetQuery = { ...asked, page: asked.page ?? 1 };
-	const [counts, hold, found] = await Promise.all([
-		countsByKind(query),
-		holdAndGeometry(query),
+	const [tiles, found] = await Promise.all([
+		tileCounts(query),
 		attention(query, {
 			order: 'urgency',
 			limit: ATTENTION_PAGE_SIZE,
@@ -292,8 +281,9 @@ export async function fleetSummary(
 	return {
 		generatedAt: now.toISOString(),
 		query,
-		today: FLAG_URGENCY.map((kind) => ({ kind, count: counts.get(kind) ?? 0 })),
-		...hold,
+		today: FLAG_URGENCY.map((kind) => ({ kind, count: tiles.byKind.get(kind) ?? 0 })),
+		onHold: tiles.onHold,
+		notExact: tiles.notExact,
 		attention: { ...found, page: query.page, pageSize: ATTENTION_PAGE_SIZE }
 	};
 }

@@ -193,6 +193,27 @@ describe('the fleet summary', () => {
 		expect(due.rows.flatMap((r) => r.flags.map((x) => x.kind))).not.toContain('out-of-spec');
 	});
 
+	it('counts geometry that is not exact by its latest saved version', async () => {
+		const version = (fixtureId: number, v: number, constraintStatus: string) => ({
+			fixtureId,
+			version: v,
+			kind: 'table',
+			contacts: [],
+			constraintStatus
+		});
+		await db.insert(schema.couplingGeometries).values([
+			// Fixed since: not counted.
+			version(f.newA.id, 1, 'under'),
+			version(f.newA.id, 2, 'exact'),
+			// Changed for the worse: counted.
+			version(f.wide.id, 1, 'exact'),
+			version(f.wide.id, 2, 'over')
+		]);
+		expect((await fleetSummary(boss, {})).notExact).toBe(1);
+		expect((await fleetSummary(boss, { area: lab.id })).notExact).toBe(1);
+		expect((await fleetSummary(boss, { area: bay.id })).notExact).toBe(0);
+	});
+
 	it('answers GET /api/fleet/summary: JSON, 400 with field messages, 401, 403', async () => {
 		const ok = await call(getSummary, boss, `/api/fleet/summary?area=${bay.id}`);
 		expect(ok.status).toBe(200);
