@@ -27,6 +27,8 @@ export interface Policy {
 	wearLimitGrade: number;
 	/** Replace soon if the trend forecast crosses the spec within this many cycles. */
 	forecastHorizonCycles: number;
+	/** Work orders made from a flag (other than replace now) are due within this many days. */
+	planningHorizonDays: number;
 }
 
 /** Where a default comes from. */
@@ -48,7 +50,8 @@ export const DEFAULT_POLICY: Policy = {
 	inspectionIntervalDays: 90,
 	ratedLifeCycles: null,
 	wearLimitGrade: 3,
-	forecastHorizonCycles: 2000
+	forecastHorizonCycles: 2000,
+	planningHorizonDays: 14
 };
 
 /** Basis of each default, for the code's readers and the policy page. */
@@ -100,6 +103,10 @@ export const POLICY_SOURCES: Record<keyof Policy, PolicySource> = {
 	forecastHorizonCycles: {
 		basis: 'common practice',
 		note: 'One inspection interval: a fixture whose trend will leave its spec before the next inspection is due is flagged now, leaving time to order parts.'
+	},
+	planningHorizonDays: {
+		basis: 'common practice',
+		note: 'Two weeks: long enough to get balls and seats from stock or a supplier and to fit the work into a shift plan, short enough that a flag does not wait a month.'
 	}
 };
 
@@ -123,5 +130,6 @@ export function assertPolicy(p: Policy): Policy {
 	}
 	requireInteger(p.wearLimitGrade, 'policy.wearLimitGrade', 1, WEAR_GRADE_MAX);
 	requireNonNegative(p.forecastHorizonCycles, 'policy.forecastHorizonCycles');
+	requireInteger(p.planningHorizonDays, 'policy.planningHorizonDays', 0, 366);
 	return p;
 }

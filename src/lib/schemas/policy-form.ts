@@ -48,7 +48,8 @@ export const policyValuesSchema = z.object({
 	inspectionIntervalDays: optionalInterval('Inspection interval (days)'),
 	ratedLifeCycles: optionalInterval('Rated seating life'),
 	wearLimitGrade: whole('Wear grade limit', 1, WEAR_GRADE_MAX),
-	forecastHorizonCycles: whole('Planning horizon', 0, 10_000_000)
+	forecastHorizonCycles: whole('Forecast horizon', 0, 10_000_000),
+	planningHorizonDays: whole('Planning horizon', 0, 366)
 });
 export type PolicyValues = z.infer<typeof policyValuesSchema>;
 export const POLICY_FIELDS = Object.keys(policyValuesSchema.shape) as (keyof PolicyValues)[];

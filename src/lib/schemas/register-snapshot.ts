@@ -24,7 +24,8 @@ export const snapshotPolicySchema = z.object({
 	inspectionIntervalDays: z.number().int().nullable(),
 	ratedLifeCycles: z.number().int().nullable(),
 	wearLimitGrade: z.number().int().nullable(),
-	forecastHorizonCycles: z.number().int().nullable()
+	forecastHorizonCycles: z.number().int().nullable(),
+	planningHorizonDays: z.number().int().nullable()
 });
 
 /** Counters the server derived from the log, as of the snapshot. */

@@ -29,7 +29,8 @@ export const POLICY_FIELD_INFO: Record<PolicyField, { label: string; unit: strin
 	inspectionIntervalDays: { label: 'Inspection interval', unit: 'days' },
 	ratedLifeCycles: { label: 'Rated seating life', unit: 'cycles' },
 	wearLimitGrade: { label: 'Wear grade limit', unit: 'grade' },
-	forecastHorizonCycles: { label: 'Planning horizon', unit: 'cycles' }
+	forecastHorizonCycles: { label: 'Forecast horizon', unit: 'cycles' },
+	planningHorizonDays: { label: 'Planning horizon', unit: 'days' }
 };
 const FIELDS = Object.keys(POLICY_FIELD_INFO) as PolicyField[];
 

@@ -39,7 +39,7 @@ test.describe('the fleet board', () => {
 
 	test('the area filter lives in the URL and survives a reload', async ({ page }) => {
 		await signInAs(page, 'supervisor', '/board');
-		await page.getByLabel('Area').selectOption({ label: 'Interferometry room' });
+		await page.getByLabel('Area', { exact: true }).selectOption({ label: 'Interferometry room' });
 		await expect(page).toHaveURL(/[?&]area=\d+/);
 		const attention = page.getByRole('region', { name: 'Needs attention' });
 		await expect(
@@ -48,8 +48,8 @@ test.describe('the fleet board', () => {
 		await expect(attention.getByRole('row').filter({ hasText: DRIFTING })).toHaveCount(0);
 
 		await page.reload();
-		await expect(page.getByLabel('Area')).toHaveValue(/\d+/);
-		await expect(page.getByLabel('Area').locator('option:checked')).toHaveText(
+		await expect(page.getByLabel('Area', { exact: true })).toHaveValue(/\d+/);
+		await expect(page.getByLabel('Area', { exact: true }).locator('option:checked')).toHaveText(
 			'Interferometry room'
 		);
 		await expect(attention.getByRole('row').filter({ hasText: DRIFTING })).toHaveCount(0);
@@ -69,7 +69,7 @@ test.describe('the fleet board', () => {
 		try {
 			await signInAs(page, 'planner', undefined, { javaScript: false });
 			await expect(page).toHaveURL(/\/board$/);
-			await page.getByLabel('Flag').selectOption('replace-now');
+			await page.getByLabel('Flag', { exact: true }).selectOption('replace-now');
 			await page.getByRole('button', { name: 'Show' }).click();
 			await expect(page).toHaveURL(/kind=replace-now/);
 			const rows = page.getByRole('region', { name: 'Needs attention' }).getByRole('row');

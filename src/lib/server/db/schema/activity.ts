@@ -1,6 +1,5 @@
 import {
 	char,
-	date,
 	datetime,
 	double,
 	index,
@@ -12,7 +11,6 @@ import {
 } from 'drizzle-orm/mysql-core';
 import { json } from './json';
 import { FLAG_KINDS } from '../../../domain/flag-kinds';
-import { WORK_ORDER_ACTIONS, WORK_ORDER_STATUSES } from '../../../domain/work-orders';
 import { users } from './auth';
 import { fixtures } from './register';
 
@@ -99,37 +97,6 @@ export const flags = mysqlTable(
 		// The audit report: flags raised, and flags cleared, within a date range.
 		index('flags_raised_idx').on(t.raisedAt),
 		index('flags_cleared_idx').on(t.clearedAt)
-	]
-);
-
-/** Planned work on a fixture, usually from a flag. */
-export const workOrders = mysqlTable(
-	'work_orders',
-	{
-		id: int('id').autoincrement().primaryKey(),
-		fixtureId: int('fixture_id')
-			.notNull()
-			.references(() => fixtures.id),
-		action: mysqlEnum('action', WORK_ORDER_ACTIONS).notNull(),
-		status: mysqlEnum('status', WORK_ORDER_STATUSES).notNull().default('planned'),
-		dueOn: date('due_on', { mode: 'string' }).notNull(),
-		assigneeId: varchar('assignee_id', { length: 255 }).references(() => users.id),
-		parts: json<{ partNo?: string; description: string; quantity: number }[]>('parts'),
-		notes: text('notes'),
-		flagId: int('flag_id').references(() => flags.id),
-		createdAt: datetime('created_at', { mode: 'date', fsp: 3 })
-			.notNull()
-			.$defaultFn(() => new Date()),
-		createdBy: varchar('created_by', { length: 255 }).references(() => users.id),
-		updatedAt: datetime('updated_at', { mode: 'date', fsp: 3 })
-			.notNull()
-			.$defaultFn(() => new Date()),
-		completedAt: datetime('completed_at', { mode: 'date', fsp: 3 })
-	},
-	(t) => [
-		index('work_orders_fixture_idx').on(t.fixtureId),
-		index('work_orders_due_idx').on(t.status, t.dueOn),
-		index('work_orders_assignee_idx').on(t.assigneeId)
 	]
 );
 

@@ -1,3 +1,4 @@
 export * from './auth';
 export * from './register';
 export * from './activity';
+export * from './work-orders';

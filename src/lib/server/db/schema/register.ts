@@ -78,6 +78,7 @@ export const policies = mysqlTable('policies', {
 	ratedLifeCycles: int('rated_life_cycles'),
 	wearLimitGrade: int('wear_limit_grade').notNull(),
 	forecastHorizonCycles: int('forecast_horizon_cycles').notNull(),
+	planningHorizonDays: int('planning_horizon_days').notNull().default(14),
 	notes: text('notes'),
 	updatedAt: datetime('updated_at', { mode: 'date', fsp: 3 })
 		.notNull()
