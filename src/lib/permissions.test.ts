@@ -25,7 +25,9 @@ const EXPECTED: Record<Action, Role[]> = {
 	'label.print': ['supervisor', 'admin'],
 	'user.admin': ['admin'],
 	'mail.view': ['admin'],
-	'fleet.view': ['supervisor', 'planner', 'admin']
+	'fleet.view': ['supervisor', 'planner', 'admin'],
+	'work-order.plan': ['supervisor', 'planner', 'admin'],
+	'work-order.carry-out': ['technician', 'supervisor', 'admin']
 };
 
 const EVERYTHING: EventKind[] = [...EVENT_KINDS];

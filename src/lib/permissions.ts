@@ -18,7 +18,9 @@ export const ACTIONS = [
 	'label.print',
 	'user.admin',
 	'mail.view',
-	'fleet.view'
+	'fleet.view',
+	'work-order.plan',
+	'work-order.carry-out'
 ] as const;
 export type Action = (typeof ACTIONS)[number];
 
@@ -35,6 +37,10 @@ const OFFICE = ['supervisor', 'admin'] as const satisfies readonly Role[];
 const ADMIN = ['admin'] as const satisfies readonly Role[];
 /** The fleet board and its report: whoever watches or plans the fleet. */
 const FLEET = ['supervisor', 'planner', 'admin'] as const satisfies readonly Role[];
+/** Work orders are planned by the planner; supervisors and admins may too. */
+const PLANNERS = ['planner', 'supervisor', 'admin'] as const satisfies readonly Role[];
+/** Work orders are carried out by whoever may log the work they ask for. */
+const DOERS = ['technician', 'supervisor', 'admin'] as const satisfies readonly Role[];
 
 /** Which kinds each role may log (a person with several roles may log the union). */
 export const LOG_KINDS: Readonly<Record<Role, readonly EventKind[]>> = {
@@ -61,7 +67,9 @@ export const PERMISSIONS: Readonly<Record<Action, { roles: readonly Role[]; doin
 	'label.print': { roles: OFFICE, doing: 'print labels' },
 	'user.admin': { roles: ADMIN, doing: 'manage people and their roles' },
 	'mail.view': { roles: ADMIN, doing: 'read captured mail' },
-	'fleet.view': { roles: FLEET, doing: 'see the fleet board' }
+	'fleet.view': { roles: FLEET, doing: 'see the fleet board' },
+	'work-order.plan': { roles: PLANNERS, doing: 'plan work orders' },
+	'work-order.carry-out': { roles: DOERS, doing: 'carry out work orders' }
 };
 
 /** Whether one role may do `action` (about `subject`, where the action has one). */
