@@ -1,9 +1,12 @@
-import { expect, test } from '@playwright/test';
+import { expect, test, type Page } from '@playwright/test';
 import { signInAs } from '../helpers/auth';
 
 // The demo's fleet (scripts/demo-scenario.ts): the drifting pallet is "DT-2 kinematic pallet B"
 // in the diamond-turning bay.
 const DRIFTING = 'DT-2 kinematic pallet B';
+
+// The filter form; the charts below it have titles with the same words ("By area", "Flags …").
+const filters = (page: Page) => page.getByRole('search', { name: 'Filter the board' });
 
 test.describe('the fleet board', () => {
 	test('a supervisor who signs in lands on the board and sees the drifting pallet under drift', async ({
@@ -39,7 +42,7 @@ test.describe('the fleet board', () => {
 
 	test('the area filter lives in the URL and survives a reload', async ({ page }) => {
 		await signInAs(page, 'supervisor', '/board');
-		await page.getByLabel('Area', { exact: true }).selectOption({ label: 'Interferometry room' });
+		await filters(page).getByLabel('Area').selectOption({ label: 'Interferometry room' });
 		await expect(page).toHaveURL(/[?&]area=\d+/);
 		const attention = page.getByRole('region', { name: 'Needs attention' });
 		await expect(
@@ -48,8 +51,8 @@ test.describe('the fleet board', () => {
 		await expect(attention.getByRole('row').filter({ hasText: DRIFTING })).toHaveCount(0);
 
 		await page.reload();
-		await expect(page.getByLabel('Area', { exact: true })).toHaveValue(/\d+/);
-		await expect(page.getByLabel('Area', { exact: true }).locator('option:checked')).toHaveText(
+		await expect(filters(page).getByLabel('Area')).toHaveValue(/\d+/);
+		await expect(filters(page).getByLabel('Area').locator('option:checked')).toHaveText(
 			'Interferometry room'
 		);
 		await expect(attention.getByRole('row').filter({ hasText: DRIFTING })).toHaveCount(0);
@@ -69,7 +72,7 @@ test.describe('the fleet board', () => {
 		try {
 			await signInAs(page, 'planner', undefined, { javaScript: false });
 			await expect(page).toHaveURL(/\/board$/);
-			await page.getByLabel('Flag', { exact: true }).selectOption('replace-now');
+			await filters(page).getByLabel('Flag').selectOption('replace-now');
 			await page.getByRole('button', { name: 'Show' }).click();
 			await expect(page).toHaveURL(/kind=replace-now/);
 			const rows = page.getByRole('region', { name: 'Needs attention' }).getByRole('row');
