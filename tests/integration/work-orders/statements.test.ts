@@ -1,13 +1,13 @@
-import mysql, { type RowDataPacket } from 'mysql2/promise';
+import type { RowDataPacket } from 'mysql2/promise';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { getPool } from '$lib/server/db';
 import type { Actor } from '$lib/server/guard';
 import { GET as getList } from '../../../src/routes/api/work-orders/+server';
 import { closeDb, db, makeFixture, makeFlag, makeUser, resetDb, schema } from '../helpers/db';
+import { countStatements } from '../helpers/statements';
 
-// The planner's list must cost the same number of SQL statements for 50 orders as for 5: counted
-// at the app's pool (its query and execute wrapped here) and by the server (Questions, on this
-// quiet test database), as tests/integration/fleet/statements.test.ts does for the board.
+// The planner's list must cost the same number of SQL statements for 50 orders as for 5, counted
+// at the app's pool and by the server (helpers/statements.ts).
 
 beforeAll(resetDb);
 afterAll(closeDb);
@@ -38,37 +38,19 @@ async function growTo(total: number) {
 	}
 }
 
-type Pool = { query: (...a: unknown[]) => unknown; execute: (...a: unknown[]) => unknown };
-
-async function countStatements() {
-	const pool = getPool() as unknown as Pool;
-	const { query, execute } = pool;
-	let sent = 0;
-	pool.query = (...a: unknown[]) => (sent++, query.apply(pool, a));
-	pool.execute = (...a: unknown[]) => (sent++, execute.apply(pool, a));
-	const watcher = await mysql.createConnection({ uri: process.env.DATABASE_URL });
-	const questions = async () => {
-		const [rows] = await watcher.query<RowDataPacket[]>("SHOW GLOBAL STATUS LIKE 'Questions'");
-		return Number(rows[0].Value);
-	};
-	try {
-		const before = await questions();
+/** Statements one list request sends, and the number of orders it lists. */
+async function countList() {
+	const { pool, server, result } = await countStatements(async () => {
 		const url = new URL('http://127.0.0.1/api/work-orders');
 		const res = await getList({
 			locals: { user: planner },
 			url,
 			request: new Request(url)
 		} as never);
-		const body = await res.json();
-		const after = await questions();
 		expect(res.status).toBe(200);
-		// The second SHOW counts itself.
-		return { pool: sent, server: after - before - 1, items: body.items.length, body };
-	} finally {
-		pool.query = query;
-		pool.execute = execute;
-		await watcher.end();
-	}
+		return (await res.json()) as { items: { flags: unknown[] }[] };
+	});
+	return { pool, server, items: result.items.length, body: result };
 }
 
 describe('statements per list request', () => {
@@ -81,12 +63,12 @@ describe('statements per list request', () => {
 
 	it('are as many for 50 orders as for 5', async () => {
 		await growTo(5);
-		const small = await countStatements();
+		const small = await countList();
 		await growTo(50);
-		const large = await countStatements();
+		const large = await countList();
 		expect(small.items).toBe(5);
 		expect(large.items).toBe(50);
-		expect(large.body.items.every((o: { flags: unknown[] }) => o.flags.length === 1)).toBe(true);
+		expect(large.body.items.every((o) => o.flags.length === 1)).toBe(true);
 		expect(small.pool).toBeGreaterThan(0);
 		expect(large.pool).toBe(small.pool);
 		expect(large.server).toBe(small.server);
