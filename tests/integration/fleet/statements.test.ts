@@ -10,8 +10,8 @@ import { closeDb, db, makeLocation, makeUser, resetDb, schema } from '../helpers
 import { countStatements } from '../helpers/statements';
 
 // The board must cost the same number of SQL statements for 50 fixtures as for 500. Counted two
-// ways: every statement the app's pool sends (its query and execute wrapped by helpers/statements.ts), and the
-// server's own count of statements received (Questions, on this quiet test database).
+// ways (helpers/statements.ts): every statement the app's pool sends, and the server's own count
+// of statements received (Questions, on this quiet test database).
 
 beforeAll(resetDb);
 afterAll(closeDb);
