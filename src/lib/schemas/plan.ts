@@ -200,3 +200,11 @@ export function createInput(v: CreateFormValues) {
 		notes: opt(v.notes)
 	};
 }
+
+/** An open work order as shown next to the flag it answers. */
+export interface PlannedOrder {
+	id: number;
+	status: WorkOrderStatus;
+	dueOn: string | null;
+	assigneeName: string | null;
+}

@@ -2,7 +2,9 @@
  * Small reads the planner's pages need beside the work-order service: whom work can be assigned
  * to, and the calendar day the list counts "overdue" from.
  */
+import type { PlannedOrder } from '../schemas/plan';
 import { listUsers } from './users';
+import { openOrdersByFixture, openOrdersByFlag } from './work-order-reads';
 
 /** A person work orders can be assigned to. */
 export interface Assignee {
@@ -22,4 +24,40 @@ export async function activeTechnicians(): Promise<Assignee[]> {
 /** Today as a UTC calendar day (YYYY-MM-DD): due dates are calendar days, compared as text. */
 export function todayUtc(now = new Date()): string {
 	return now.toISOString().slice(0, 10);
+}
+
+/** Open work orders by the flag they answer, as a plain record the pages can carry. */
+export async function plannedByFlag(flagIds: number[]): Promise<Record<number, PlannedOrder>> {
+	if (flagIds.length === 0) return {};
+	const byFlag = await openOrdersByFlag(flagIds);
+	return Object.fromEntries(
+		[...byFlag].map(([flagId, o]) => [
+			flagId,
+			{ id: o.id, status: o.status, dueOn: o.dueOn, assigneeName: o.assigneeName }
+		])
+	);
+}
+
+/**
+ * Per fixture, its open work order due first (the register shows one line per fixture: its
+ * flags are shown by kind, not one by one).
+ */
+export async function plannedByFixture(fixtureIds: number[]): Promise<Record<number, PlannedOrder>> {
+	if (fixtureIds.length === 0) return {};
+	const byFixture = await openOrdersByFixture(fixtureIds);
+	const out: Record<number, PlannedOrder> = {};
+	for (const [fixtureId, list] of byFixture) {
+		const orders = Array.isArray(list) ? list : [list];
+		const first = [...orders].sort((a, b) =>
+			(a.dueOn ?? '9999-12-31').localeCompare(b.dueOn ?? '9999-12-31')
+		)[0];
+		if (first)
+			out[fixtureId] = {
+				id: first.id,
+				status: first.status,
+				dueOn: first.dueOn,
+				assigneeName: first.assigneeName
+			};
+	}
+	return out;
 }
