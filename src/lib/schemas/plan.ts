@@ -53,7 +53,7 @@ export const planQuerySchema = z.object({
 		blank,
 		z.enum(PLAN_STATUS_CHOICES, { error: 'status is not a status.' }).default('open')
 	),
-	/** An e-mail address, or "none" for orders nobody is assigned to. */
+	/** The assignee's e-mail address. */
 	assignee: z.preprocess(
 		blank,
 		z
@@ -61,7 +61,7 @@ export const planQuerySchema = z.object({
 			.trim()
 			.toLowerCase()
 			.max(255)
-			.refine((s) => s === 'none' || z.email().safeParse(s).success, {
+			.refine((s) => z.email().safeParse(s).success, {
 				message: 'assignee must be an e-mail address.'
 			})
 			.optional()

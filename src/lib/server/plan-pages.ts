@@ -1,10 +1,12 @@
 /**
  * Small reads the planner's pages need beside the work-order service: whom work can be assigned
- * to, and the calendar day the list counts "overdue" from.
+ * to, and the open orders beside flags as plain records the pages can carry.
  */
 import type { PlannedOrder } from '../schemas/plan';
 import { listUsers } from './users';
 import { openOrdersByFixture, openOrdersByFlag } from './work-order-reads';
+
+export { todayUtc } from './work-order-reads';
 
 /** A person work orders can be assigned to. */
 export interface Assignee {
@@ -19,11 +21,6 @@ export async function activeTechnicians(): Promise<Assignee[]> {
 		.filter((p) => p.active && p.roles.includes('technician'))
 		.map((p) => ({ email: p.email, name: p.name }))
 		.sort((a, b) => a.name.localeCompare(b.name));
-}
-
-/** Today as a UTC calendar day (YYYY-MM-DD): due dates are calendar days, compared as text. */
-export function todayUtc(now = new Date()): string {
-	return now.toISOString().slice(0, 10);
 }
 
 /** Open work orders by the flag they answer, as a plain record the pages can carry. */
@@ -47,10 +44,8 @@ export async function plannedByFixture(fixtureIds: number[]): Promise<Record<num
 	const byFixture = await openOrdersByFixture(fixtureIds);
 	const out: Record<number, PlannedOrder> = {};
 	for (const [fixtureId, list] of byFixture) {
-		const orders = Array.isArray(list) ? list : [list];
-		const first = [...orders].sort((a, b) =>
-			(a.dueOn ?? '9999-12-31').localeCompare(b.dueOn ?? '9999-12-31')
-		)[0];
+		// Listed soonest due first.
+		const first = list[0];
 		if (first)
 			out[fixtureId] = {
 				id: first.id,

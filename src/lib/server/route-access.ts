@@ -75,7 +75,7 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 		actions: { assign: 'work-order.plan', reschedule: 'work-order.plan', fromFlag: 'work-order.plan' }
 	},
 	'/(app)/plan/new': { page: 'work-order.plan', actions: { default: 'work-order.plan' } },
-	'/(app)/plan/[id=id]': {
+	'/(app)/plan/[id]': {
 		page: 'work-order.plan',
 		actions: { save: 'work-order.plan', status: 'work-order.plan' }
 	},

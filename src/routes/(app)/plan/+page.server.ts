@@ -1,7 +1,7 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { z } from 'zod';
 import { parsePlanQuery, PLAN_PAGE_SIZE } from '$lib/schemas/plan';
-import { isoDateSchema } from '$lib/schemas/work-orders';
+import { isoDateSchema, OPEN_WORK_ORDER_STATUSES } from '$lib/schemas/work-orders';
 import { ForbiddenError, requireUser } from '$lib/server/guard';
 import { activeTechnicians, todayUtc } from '$lib/server/plan-pages';
 import * as places from '$lib/server/places';
@@ -22,14 +22,14 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 	const [list, unplanned, technicians, tree] = await Promise.all([
 		reads.listWorkOrders(
 			{
-				status: query.status,
-				assignee: query.assignee,
+				statuses: query.status === 'open' ? [...OPEN_WORK_ORDER_STATUSES] : [query.status],
+				assigneeEmail: query.assignee,
 				areaId: query.area,
 				action: query.action,
 				from: query.from,
 				to: query.to,
-				limit: PLAN_PAGE_SIZE,
-				offset: (query.page - 1) * PLAN_PAGE_SIZE
+				page: query.page,
+				pageSize: PLAN_PAGE_SIZE
 			},
 			today
 		),
@@ -68,6 +68,10 @@ function backTo(form: FormData, notice: string, count: number): string {
 	return `/plan?${params}`;
 }
 
+/** A refusal in one sentence: its field messages, else its message. */
+const fieldText = (e: InstanceType<typeof workOrders.WorkOrderError>) =>
+	e.fields ? Object.values(e.fields).flat().join(' ') : e.message;
+
 /** Runs a bulk change; its refusal comes back to the form as one message. */
 async function bulk(work: () => Promise<unknown>) {
 	try {
@@ -75,10 +79,8 @@ async function bulk(work: () => Promise<unknown>) {
 		return null;
 	} catch (e) {
 		if (e instanceof ForbiddenError) error(403, { message: e.message });
-		if (e instanceof workOrders.WorkOrderInputError || e instanceof workOrders.WorkOrderConflictError)
-			return fail(e instanceof workOrders.WorkOrderConflictError ? 409 : 400, {
-				bulkError: e.message
-			});
+		if (e instanceof workOrders.WorkOrderError)
+			return fail(e.status, { bulkError: fieldText(e) });
 		throw e;
 	}
 }
@@ -118,11 +120,8 @@ export const actions: Actions = {
 			({ id } = await workOrders.createFromFlag(actor, flagId.data, {}));
 		} catch (e) {
 			if (e instanceof ForbiddenError) error(403, { message: e.message });
-			if (e instanceof workOrders.WorkOrderInputError || e instanceof workOrders.WorkOrderConflictError)
-				return fail(e instanceof workOrders.WorkOrderConflictError ? 409 : 400, {
-					flagError: e.message,
-					flagId: flagId.data
-				});
+			if (e instanceof workOrders.WorkOrderError)
+				return fail(e.status, { flagError: fieldText(e), flagId: flagId.data });
 			throw e;
 		}
 		redirect(303, `/plan/${id}?created`);

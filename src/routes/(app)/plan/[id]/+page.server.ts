@@ -75,10 +75,11 @@ async function patch(
 		return null;
 	} catch (e) {
 		if (e instanceof ForbiddenError) error(403, { message: e.message });
-		if (e instanceof workOrders.WorkOrderInputError)
-			return fail(400, { values, errors: e.fields, refusal: null });
-		if (e instanceof workOrders.WorkOrderConflictError)
-			return fail(409, { values, errors: null, refusal: e.message });
+		if (e instanceof workOrders.WorkOrderError) {
+			if (e.status === 409) return fail(409, { values, errors: null, refusal: e.message });
+			if (e.status === 404) error(404, { message: e.message });
+			return fail(400, { values, errors: e.fields ?? { _form: [e.message] }, refusal: null });
+		}
 		throw e;
 	}
 }

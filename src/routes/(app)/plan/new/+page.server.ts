@@ -24,24 +24,32 @@ const EMPTY: CreateFormValues = {
 	parts: []
 };
 
+/** A flag that does not exist opens the empty form (with a note), not an error page. */
+function notFoundAsNull(e: unknown): null {
+	if (e instanceof workOrders.WorkOrderError && e.status === 404) return null;
+	throw e;
+}
+
 export const load: PageServerLoad = async ({ locals, url }) => {
 	requireUser(locals, 'work-order.plan');
 	const flagParam = url.searchParams.get('flag');
 	const flagId = flagParam && /^\d{1,10}$/.test(flagParam) ? Number(flagParam) : null;
-	const [technicians, draft] = await Promise.all([
+	const [technicians, found] = await Promise.all([
 		activeTechnicians(),
-		flagId ? workOrders.draftFromFlag(flagId, todayUtc()) : null
+		flagId ? workOrders.draftFromFlag(flagId, todayUtc()).catch(notFoundAsNull) : null
 	]);
+	// A closed flag needs no order: the form opens empty, with the reason.
+	const draft = found?.flagOpen ? found : null;
 	let values: CreateFormValues = { ...EMPTY, fixtureCode: url.searchParams.get('fixture') ?? '' };
 	if (draft) {
 		values = {
 			...EMPTY,
 			fixtureCode: draft.fixtureCode,
 			action: draft.action,
-			dueOn: draft.dueOn ?? '',
-			flagId: String(flagId),
-			notes: draft.notes ?? '',
-			parts: (draft.parts ?? []).map((p) => ({
+			dueOn: draft.dueOn,
+			flagId: String(draft.flagId),
+			notes: draft.notes,
+			parts: draft.parts.map((p) => ({
 				description: p.description,
 				size: p.size ?? '',
 				material: p.material ?? '',
@@ -55,7 +63,7 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 		technicians,
 		cautions: fixture ? handlingCautions(fixture) : [],
 		values,
-		fromFlag: draft ? { id: flagId!, kind: draft.flagKind, reason: draft.flagReason } : null,
+		fromFlag: draft ? { id: draft.flagId, kind: draft.flagKind } : null,
 		// A link to a flag that is gone or cleared still opens the form, with the reason.
 		flagProblem:
 			flagParam !== null && !draft
@@ -75,8 +83,8 @@ export const actions: Actions = {
 			({ id } = await workOrders.createWorkOrder(actor, parsed.data));
 		} catch (e) {
 			if (e instanceof ForbiddenError) error(403, { message: e.message });
-			if (e instanceof workOrders.WorkOrderInputError)
-				return fail(400, { values, errors: e.fields });
+			if (e instanceof workOrders.WorkOrderError)
+				return fail(e.status, { values, errors: e.fields ?? { _form: [e.message] } });
 			throw e;
 		}
 		redirect(303, `/plan/${id}?created=1`);
