@@ -90,7 +90,8 @@ export function parsePlanQuery(params: URLSearchParams): {
 	const errors: Record<string, string> = {};
 	for (;;) {
 		const parsed = planQuerySchema.safeParse(raw);
-		if (parsed.success) return { query: parsed.data, errors: Object.keys(errors).length ? errors : null };
+		if (parsed.success)
+			return { query: parsed.data, errors: Object.keys(errors).length ? errors : null };
 		for (const issue of parsed.error.issues) {
 			const key = String(issue.path[0]);
 			errors[key] = issue.message;

@@ -39,7 +39,9 @@ export async function plannedByFlag(flagIds: number[]): Promise<Record<number, P
  * Per fixture, its open work order due first (the register shows one line per fixture: its
  * flags are shown by kind, not one by one).
  */
-export async function plannedByFixture(fixtureIds: number[]): Promise<Record<number, PlannedOrder>> {
+export async function plannedByFixture(
+	fixtureIds: number[]
+): Promise<Record<number, PlannedOrder>> {
 	if (fixtureIds.length === 0) return {};
 	const byFixture = await openOrdersByFixture(fixtureIds);
 	const out: Record<number, PlannedOrder> = {};

@@ -72,7 +72,11 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 	// The planner's work orders: the list with its bulk actions, a new order, one order.
 	'/(app)/plan': {
 		page: 'work-order.plan',
-		actions: { assign: 'work-order.plan', reschedule: 'work-order.plan', fromFlag: 'work-order.plan' }
+		actions: {
+			assign: 'work-order.plan',
+			reschedule: 'work-order.plan',
+			fromFlag: 'work-order.plan'
+		}
 	},
 	'/(app)/plan/new': { page: 'work-order.plan', actions: { default: 'work-order.plan' } },
 	'/(app)/plan/[id]': {

@@ -79,8 +79,7 @@ async function bulk(work: () => Promise<unknown>) {
 		return null;
 	} catch (e) {
 		if (e instanceof ForbiddenError) error(403, { message: e.message });
-		if (e instanceof workOrders.WorkOrderError)
-			return fail(e.status, { bulkError: fieldText(e) });
+		if (e instanceof workOrders.WorkOrderError) return fail(e.status, { bulkError: fieldText(e) });
 		throw e;
 	}
 }
@@ -91,7 +90,11 @@ export const actions: Actions = {
 		const form = await request.formData();
 		const ids = idsSchema.safeParse(form.getAll('ids'));
 		if (!ids.success) return fail(400, { bulkError: ids.error.issues[0].message });
-		const email = z.email().safeParse(String(form.get('bulkAssignee') ?? '').trim().toLowerCase());
+		const email = z.email().safeParse(
+			String(form.get('bulkAssignee') ?? '')
+				.trim()
+				.toLowerCase()
+		);
 		if (!email.success) return fail(400, { bulkError: 'Choose whom to assign them to.' });
 		const failed = await bulk(() => workOrders.bulkAssign(actor, ids.data, email.data));
 		if (failed) return failed;

@@ -49,8 +49,9 @@ export function valueWords(field: string, v: unknown): string {
 			return v.length === 0
 				? 'none'
 				: v
-						.map((p: { description?: string; quantity?: number }) =>
-							`${p.quantity ?? 1} × ${p.description ?? 'part'}`
+						.map(
+							(p: { description?: string; quantity?: number }) =>
+								`${p.quantity ?? 1} × ${p.description ?? 'part'}`
 						)
 						.join('; ');
 		return v.map(String).join(', ');

@@ -60,8 +60,15 @@ function changesOf(
 	return out;
 }
 
-const normalParts = (parts: { description: string; quantity: number; size?: string; material?: string }[]) =>
-	parts.map((p) => [p.description.trim(), p.quantity, p.size?.trim() || '', p.material?.trim() || '']);
+const normalParts = (
+	parts: { description: string; quantity: number; size?: string; material?: string }[]
+) =>
+	parts.map((p) => [
+		p.description.trim(),
+		p.quantity,
+		p.size?.trim() || '',
+		p.material?.trim() || ''
+	]);
 
 /** Runs a patch; field messages, 403 and refusals (409) come back to the form. */
 async function patch(
