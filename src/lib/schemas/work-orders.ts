@@ -5,11 +5,11 @@
  */
 import { z } from 'zod';
 import {
-	OPEN_WORK_ORDER_STATUSES,
 	WORK_ORDER_ACTIONS,
 	WORK_ORDER_LIMITS as L,
 	WORK_ORDER_STATUSES
 } from '../domain/work-orders';
+import type { WorkOrderPart } from '../domain/work-orders';
 import { unicodeString } from './text';
 
 export {
@@ -184,7 +184,7 @@ export interface WorkOrderView {
 	dueOn: string | null;
 	assigneeEmail: string | null;
 	assigneeName: string | null;
-	parts: z.output<typeof workOrderPartSchema>[];
+	parts: WorkOrderPart[];
 	notes: string | null;
 	cancelReason: string | null;
 	/** The flags it answers, open or closed. */
