@@ -45,9 +45,9 @@ test.describe('the planner’s pages', () => {
 		await page.getByRole('button', { name: 'Create work order' }).click();
 
 		// The order: scheduled (a date and an assignee), with its history row.
-		await expect(page).toHaveURL(/\/plan\/\d+\?created$/);
-		const orderUrl = page.url().replace(/\?created$/, '');
-		await expect(page.getByRole('status')).toContainText('Work order created.');
+		await expect(page).toHaveURL(/\/plan\/\d+\?created=1$/);
+		const orderUrl = page.url().replace(/\?created=1$/, '');
+		await expect(page.getByRole('main').getByRole('status')).toContainText('Work order created.');
 		await expect(page.getByRole('heading', { name: 'Replace balls and seats' })).toBeVisible();
 		await expect(page.getByText('Scheduled', { exact: true })).toBeVisible();
 		const history = page.getByRole('list', { name: 'History of this work order' });
@@ -77,13 +77,13 @@ test.describe('the planner’s pages', () => {
 		await untilHydrated(other);
 		await other.getByLabel('Reason for cancelling').fill('Spare set not in stock this week.');
 		await other.getByRole('button', { name: 'Cancel work order' }).click();
-		await expect(other.getByRole('status')).toContainText('Status changed.');
+		await expect(other.getByRole('main').getByRole('status')).toContainText('Status changed.');
 		await expect(other.getByText('Cancelled', { exact: true })).toBeVisible();
 		await other.close();
 
 		await untilHydrated(page);
 		await page.getByRole('button', { name: 'Mark done' }).click();
-		await expect(page.getByRole('alert')).toHaveText(
+		await expect(page.getByRole('main').getByRole('alert')).toHaveText(
 			'⚠ This work order is cancelled: it cannot become done. Make a new work order instead.'
 		);
 		await page.reload();
@@ -95,13 +95,17 @@ test.describe('the planner’s pages', () => {
 	test('the filters live in the URL and survive a reload', async ({ page }) => {
 		await signInAs(page, 'planner', '/plan');
 		await untilHydrated(page);
-		await page.getByLabel('Action', { exact: true }).selectOption('inspect');
+		await page.getByRole('combobox', { name: 'Action', exact: true }).selectOption('inspect');
 		await expect(page).toHaveURL(/[?&]action=inspect\b/);
-		await page.getByLabel('Status', { exact: true }).selectOption('cancelled');
+		await page.getByRole('combobox', { name: 'Status', exact: true }).selectOption('cancelled');
 		await expect(page).toHaveURL(/[?&]status=cancelled\b/);
 		await page.reload();
-		await expect(page.getByLabel('Action', { exact: true })).toHaveValue('inspect');
-		await expect(page.getByLabel('Status', { exact: true })).toHaveValue('cancelled');
+		await expect(page.getByRole('combobox', { name: 'Action', exact: true })).toHaveValue(
+			'inspect'
+		);
+		await expect(page.getByRole('combobox', { name: 'Status', exact: true })).toHaveValue(
+			'cancelled'
+		);
 		// Every row shown is a cancelled inspection (or the list says none matches).
 		const rows = page.getByRole('region', { name: 'Work orders' }).getByRole('row');
 		const count = await rows.count();
