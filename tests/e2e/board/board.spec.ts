@@ -39,7 +39,9 @@ test.describe('the fleet board', () => {
 
 	test('the area filter lives in the URL and survives a reload', async ({ page }) => {
 		await signInAs(page, 'supervisor', '/board');
-		await page.getByLabel('Area', { exact: true }).selectOption({ label: 'Interferometry room' });
+		await page
+			.getByRole('combobox', { name: 'Area', exact: true })
+			.selectOption({ label: 'Interferometry room' });
 		await expect(page).toHaveURL(/[?&]area=\d+/);
 		const attention = page.getByRole('region', { name: 'Needs attention' });
 		await expect(
@@ -48,10 +50,10 @@ test.describe('the fleet board', () => {
 		await expect(attention.getByRole('row').filter({ hasText: DRIFTING })).toHaveCount(0);
 
 		await page.reload();
-		await expect(page.getByLabel('Area', { exact: true })).toHaveValue(/\d+/);
-		await expect(page.getByLabel('Area', { exact: true }).locator('option:checked')).toHaveText(
-			'Interferometry room'
-		);
+		await expect(page.getByRole('combobox', { name: 'Area', exact: true })).toHaveValue(/\d+/);
+		await expect(
+			page.getByRole('combobox', { name: 'Area', exact: true }).locator('option:checked')
+		).toHaveText('Interferometry room');
 		await expect(attention.getByRole('row').filter({ hasText: DRIFTING })).toHaveCount(0);
 		await expect(
 			attention.getByRole('row').filter({ hasText: 'Transmission-sphere mount TS-A' })
@@ -69,7 +71,7 @@ test.describe('the fleet board', () => {
 		try {
 			await signInAs(page, 'planner', '/board', { javaScript: false });
 			await expect(page).toHaveURL(/\/board$/);
-			await page.getByLabel('Flag', { exact: true }).selectOption('replace-now');
+			await page.getByRole('combobox', { name: 'Flag', exact: true }).selectOption('replace-now');
 			await page.getByRole('button', { name: 'Show' }).click();
 			await expect(page).toHaveURL(/kind=replace-now/);
 			const rows = page.getByRole('region', { name: 'Needs attention' }).getByRole('row');
