@@ -23,6 +23,7 @@ import * as places from '$lib/server/places';
 import { effectivePolicy, ensureTypePolicies } from '$lib/server/policies';
 import type { Policy } from '$lib/domain/policy';
 import { demoHistory, type DemoEvent, type DemoRole } from './demo-history';
+import { seedWorkOrders } from './demo-work-orders';
 import { renderDemoPhoto } from './demo-photos';
 import { storePhoto } from '$lib/server/attachments';
 import { resetStorageClient } from '$lib/server/storage';
@@ -315,7 +316,8 @@ export async function seedDemo(options: { now?: Date } = {}) {
 	const locationIds = await seedPlaces(users.admin);
 	const fx = await seedFixtures(users.admin, locationIds);
 	const history = await seedHistory(users.byRole, seedTime);
-	return { users, policies, locations: locationIds.size, fixtures: fx, history };
+	const workOrders = await seedWorkOrders(users.byRole, demoCodes(DEMO_FIXTURES), seedTime);
+	return { users, policies, locations: locationIds.size, fixtures: fx, history, workOrders };
 }
 
 async function main() {
@@ -323,7 +325,8 @@ async function main() {
 	console.log(
 		`seed: ${r.users.added} of ${r.users.total} demo accounts added, ${r.policies} type policies added, ` +
 			`${r.locations} locations present, ${r.fixtures.added} of ${r.fixtures.total} demo fixtures added, ` +
-			`history for ${r.history.fixtures} fixtures (${r.history.events} events, ${r.history.photos} photos) added`
+			`history for ${r.history.fixtures} fixtures (${r.history.events} events, ${r.history.photos} photos) added, ` +
+			`${r.workOrders} work orders added`
 	);
 }
 

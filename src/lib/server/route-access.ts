@@ -106,6 +106,10 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 	'/api/flags': { methods: { GET: 'fixture.view' } },
 	'/api/fleet/summary': { methods: { GET: 'fleet.view' } },
 	'/api/fleet/trends': { methods: { GET: 'fleet.view' } },
+	// Work orders: planners change them; technicians read their own (the handlers judge that, so
+	// the table lets every reader of the register through to GET and the handler refuses others).
+	'/api/work-orders': { methods: { GET: 'fixture.view', POST: 'work-order.plan' } },
+	'/api/work-orders/[id]': { methods: { GET: 'fixture.view', PATCH: 'work-order.plan' } },
 	'/api/register-snapshot': { methods: { GET: 'fixture.view' } },
 	// Per event, ingest judges the kind; a photo belongs to an inspection (attachments.ts judges).
 	'/api/sync': { methods: { POST: 'event.log' } },

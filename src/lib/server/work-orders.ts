@@ -4,78 +4,38 @@
  * of $lib/domain/work-orders, and appends one history row per order changed. Reads are in
  * ./work-order-reads.ts, drafts from flags in ./work-order-drafts.ts.
  */
-import { and, asc, eq, inArray } from 'drizzle-orm';
+import { and, eq, inArray } from 'drizzle-orm';
 import type { PoolConnection } from 'mysql2/promise';
 import {
 	isOpenStatus,
 	statusForPlan,
 	transitionRefusal,
-	type WorkOrderPart,
 	type WorkOrderStatus
 } from '../domain/work-orders';
-import type { WorkOrderCreate, WorkOrderPatch, WorkOrderView } from '../schemas/work-orders';
+import type { WorkOrderPatch, WorkOrderView } from '../schemas/work-orders';
 import { type Db } from './db';
-import { fixtures, flags, userRoles, users, workOrderFlags, workOrders } from './db/schema';
+import { fixtures, flags, workOrderFlags, workOrders } from './db/schema';
 import { drizzleOn, inTransaction } from './db/transaction';
 import { appendWorkOrderHistory, type WorkOrderHistoryEntry } from './db/work-order-history';
-import { can, refusal } from '../permissions';
-import { ForbiddenError, type Actor } from './guard';
 import { draftFromFlag } from './work-order-drafts';
 import { workOrderViews } from './work-order-reads';
 import { fieldError, WorkOrderError } from './work-order-errors';
+import {
+	assertPlanner,
+	diff,
+	emailsOf,
+	technicianByEmail,
+	type OrderRow,
+	type Shown,
+	type WorkOrderActor,
+	type WorkOrderInput
+} from './work-order-shared';
 
 export { WorkOrderError } from './work-order-errors';
 export { draftFromFlag, type WorkOrderDraft } from './work-order-drafts';
 export * from './work-order-reads';
-
-/** Who acts: the services need only the id and the roles. */
-export type WorkOrderActor = Pick<Actor, 'id' | 'roles'>;
-
-type OrderRow = typeof workOrders.$inferSelect;
-
-/**
- * A new order: the API's body after workOrderCreateSchema (WorkOrderCreate fits), with the
- * optional fields optional for callers on the server (forms, drafts, the seed).
- */
-export type WorkOrderInput = Pick<WorkOrderCreate, 'fixtureCode' | 'action'> &
-	Partial<Pick<WorkOrderCreate, 'actionText' | 'dueOn' | 'assigneeEmail' | 'flagId' | 'notes'>> & {
-		parts?: WorkOrderPart[];
-	};
-
-/** Only planners, supervisors and admins plan work orders. */
-function assertPlanner(actor: WorkOrderActor): void {
-	if (!can(actor, 'work-order.plan')) throw new ForbiddenError(refusal('work-order.plan'));
-}
-
-/** The person with this e-mail address, when active and a technician; else a field error. */
-async function technicianByEmail(d: Db, email: string): Promise<{ id: string; email: string }> {
-	const found = await d
-		.select({ id: users.id, email: users.email, active: users.active, role: userRoles.role })
-		.from(users)
-		.leftJoin(userRoles, and(eq(userRoles.userId, users.id), eq(userRoles.role, 'technician')))
-		.where(eq(users.email, email));
-	const u = found[0];
-	if (!u) throw fieldError('assigneeEmail', `No one has the e-mail address ${email}.`);
-	if (!u.active)
-		throw fieldError('assigneeEmail', `${email} is deactivated; choose an active technician.`);
-	if (!found.some((r) => r.role === 'technician'))
-		throw fieldError(
-			'assigneeEmail',
-			`${email} is not a technician; work orders are assigned to technicians.`
-		);
-	return { id: u.id, email: u.email ?? email };
-}
-
-/** E-mail addresses of these people, by id (one statement). */
-async function emailsOf(d: Db, ids: (string | null)[]): Promise<Map<string, string | null>> {
-	const wanted = [...new Set(ids.filter((x): x is string => !!x))];
-	if (!wanted.length) return new Map();
-	const rows = await d
-		.select({ id: users.id, email: users.email })
-		.from(users)
-		.where(inArray(users.id, wanted));
-	return new Map(rows.map((r) => [r.id, r.email]));
-}
+export { bulkAssign, bulkReschedule } from './work-order-bulk';
+export type { WorkOrderActor, WorkOrderInput } from './work-order-shared';
 
 /** The open order answering flag `flagId`, if any (read while the flag row is locked). */
 async function openOrderOfFlag(d: Db, flagId: number): Promise<number | null> {
@@ -226,25 +186,6 @@ export async function createFromFlag(
 	});
 }
 
-/** The fields a history row compares, as the API shows them. */
-interface Shown {
-	status: WorkOrderStatus;
-	dueOn: string | null;
-	assigneeEmail: string | null;
-	notes: string | null;
-	parts: OrderRow['parts'];
-	cancelReason: string | null;
-}
-
-/** Field → [before, after] for the fields that really changed. */
-function diff<T extends object>(before: T, after: T): Record<string, [unknown, unknown]> {
-	const out: Record<string, [unknown, unknown]> = {};
-	for (const k of Object.keys(before) as (keyof T & string)[]) {
-		if (JSON.stringify(before[k]) !== JSON.stringify(after[k])) out[k] = [before[k], after[k]];
-	}
-	return out;
-}
-
 const WHAT_FOR_STATUS: Partial<Record<WorkOrderStatus, WorkOrderHistoryEntry['what']>> = {
 	underway: 'started',
 	done: 'done',
@@ -351,99 +292,4 @@ export async function updateWorkOrder(
 		]);
 		return (await workOrderViews([id], d))[0];
 	});
-}
-
-/**
- * Sets the same due date or assignee on several open orders at once, in one transaction: all or
- * none. 404 when an id is unknown, 400 naming the orders that are done or cancelled. Each order's
- * status follows its plan (statusForPlan); one history row per order that changed.
- */
-async function bulkChange(
-	actor: WorkOrderActor,
-	ids: number[],
-	change: { dueOn?: string | null; assigneeEmail?: string | null }
-): Promise<WorkOrderView[]> {
-	assertPlanner(actor);
-	const wanted = [...new Set(ids)].sort((a, b) => a - b);
-	if (!wanted.length) throw fieldError('ids', 'Choose at least one work order.');
-	return inTransaction(async (conn) => {
-		const d = drizzleOn(conn);
-		const rows = await d
-			.select()
-			.from(workOrders)
-			.where(inArray(workOrders.id, wanted))
-			.orderBy(asc(workOrders.id))
-			.for('update');
-		const found = new Set(rows.map((r) => r.id));
-		const missing = wanted.filter((id) => !found.has(id));
-		if (missing.length)
-			throw new WorkOrderError(
-				404,
-				`There is no work order ${missing.map((id) => `#${id}`).join(', ')}.`
-			);
-		const closed = rows.filter((r) => !isOpenStatus(r.status));
-		if (closed.length)
-			throw fieldError(
-				'ids',
-				`Done or cancelled work orders cannot be changed: ${closed.map((r) => `#${r.id} (${r.status})`).join(', ')}.`
-			);
-		let newAssignee: { id: string; email: string } | null | undefined;
-		if (change.assigneeEmail !== undefined)
-			newAssignee = change.assigneeEmail ? await technicianByEmail(d, change.assigneeEmail) : null;
-		const emails = await emailsOf(
-			d,
-			rows.map((r) => r.assigneeId)
-		);
-		const now = new Date();
-		const byStatus = new Map<WorkOrderStatus, number[]>();
-		const history: WorkOrderHistoryEntry[] = [];
-		for (const r of rows) {
-			const assigneeId = newAssignee === undefined ? r.assigneeId : (newAssignee?.id ?? null);
-			const dueOn = change.dueOn === undefined ? r.dueOn : change.dueOn;
-			const status = statusForPlan(r.status, dueOn, assigneeId);
-			const shown = (s: WorkOrderStatus, due: string | null, email: string | null) => ({
-				status: s,
-				dueOn: due,
-				assigneeEmail: email
-			});
-			const beforeEmail = r.assigneeId ? (emails.get(r.assigneeId) ?? null) : null;
-			const afterEmail = newAssignee === undefined ? beforeEmail : (newAssignee?.email ?? null);
-			const changes = diff(shown(r.status, r.dueOn, beforeEmail), shown(status, dueOn, afterEmail));
-			if (!Object.keys(changes).length) continue;
-			byStatus.set(status, [...(byStatus.get(status) ?? []), r.id]);
-			history.push({ workOrderId: r.id, at: now, userId: actor.id, what: 'changed', changes });
-		}
-		// One UPDATE per resulting status (at most three), not one per order.
-		for (const [status, group] of byStatus) {
-			await d
-				.update(workOrders)
-				.set({
-					status,
-					updatedAt: now,
-					...(change.dueOn !== undefined ? { dueOn: change.dueOn } : {}),
-					...(newAssignee !== undefined ? { assigneeId: newAssignee?.id ?? null } : {})
-				})
-				.where(inArray(workOrders.id, group));
-		}
-		await appendWorkOrderHistory(conn, history);
-		return workOrderViews(wanted, d);
-	});
-}
-
-/** Assigns several open orders to one technician (or to nobody, with null). */
-export function bulkAssign(
-	actor: WorkOrderActor,
-	ids: number[],
-	assigneeEmail: string | null
-): Promise<WorkOrderView[]> {
-	return bulkChange(actor, ids, { assigneeEmail });
-}
-
-/** Gives several open orders one due date (or none, with null). */
-export function bulkReschedule(
-	actor: WorkOrderActor,
-	ids: number[],
-	dueOn: string | null
-): Promise<WorkOrderView[]> {
-	return bulkChange(actor, ids, { dueOn });
 }

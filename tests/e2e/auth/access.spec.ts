@@ -131,6 +131,12 @@ const ANSWER: Record<string, number | ((who: Who) => number)> = {
 	'GET /api/flags': 200,
 	'GET /api/fleet/summary': 200,
 	'GET /api/fleet/trends': 200,
+	// Operators pass the table (they read the register) and are refused by the handler.
+	'GET /api/work-orders': (who) => (who === 'operator' ? 403 : 200),
+	'POST /api/work-orders': 400,
+	// No work order has this id (a UUID, not a number).
+	'GET /api/work-orders/[id]': (who) => (who === 'operator' ? 403 : 404),
+	'PATCH /api/work-orders/[id]': 400,
 	'GET /api/register-snapshot': 200,
 	'POST /api/sync': 400,
 	// No photo has this id: the answer after the guard is "not found".

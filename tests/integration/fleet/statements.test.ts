@@ -1,5 +1,5 @@
 import { randomUUID } from 'node:crypto';
-import mysql, { type RowDataPacket } from 'mysql2/promise';
+import type { RowDataPacket } from 'mysql2/promise';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { generateFixtureCode } from '$lib/domain/fixture-code';
 import { getPool } from '$lib/server/db';
@@ -7,10 +7,11 @@ import type { Actor } from '$lib/server/guard';
 import { ingestBatch } from '$lib/server/ingest';
 import { GET as getSummary } from '../../../src/routes/api/fleet/summary/+server';
 import { closeDb, db, makeLocation, makeUser, resetDb, schema } from '../helpers/db';
+import { countStatements } from '../helpers/statements';
 
 // The board must cost the same number of SQL statements for 50 fixtures as for 500. Counted two
-// ways: every statement the app's pool sends (its query and execute wrapped here), and the
-// server's own count of statements received (Questions, on this quiet test database).
+// ways (helpers/statements.ts): every statement the app's pool sends, and the server's own count
+// of statements received (Questions, on this quiet test database).
 
 beforeAll(resetDb);
 afterAll(closeDb);
@@ -59,48 +60,19 @@ async function growTo(total: number) {
 	}
 }
 
-type Pool = { query: (...a: unknown[]) => unknown; execute: (...a: unknown[]) => unknown };
-
 /** Statements one board request sends: counted at the pool and at the server. */
-async function countStatements(): Promise<{
-	pool: number;
-	server: number;
-	rows: number;
-	total: number;
-}> {
-	const pool = getPool() as unknown as Pool;
-	const { query, execute } = pool;
-	let sent = 0;
-	pool.query = (...a: unknown[]) => (sent++, query.apply(pool, a));
-	pool.execute = (...a: unknown[]) => (sent++, execute.apply(pool, a));
-	const watcher = await mysql.createConnection({ uri: process.env.DATABASE_URL });
-	const questions = async () => {
-		const [rows] = await watcher.query<RowDataPacket[]>("SHOW GLOBAL STATUS LIKE 'Questions'");
-		return Number(rows[0].Value);
-	};
-	try {
-		const before = await questions();
+async function countBoard() {
+	const { pool, server, result } = await countStatements(async () => {
 		const url = new URL('http://127.0.0.1/api/fleet/summary');
 		const res = await getSummary({
 			locals: { user: boss },
 			url,
 			request: new Request(url)
 		} as never);
-		const body = await res.json();
-		const after = await questions();
 		expect(res.status).toBe(200);
-		// The second SHOW counts itself.
-		return {
-			pool: sent,
-			server: after - before - 1,
-			rows: body.attention.rows.length,
-			total: body.attention.total
-		};
-	} finally {
-		pool.query = query;
-		pool.execute = execute;
-		await watcher.end();
-	}
+		return (await res.json()) as { attention: { rows: unknown[]; total: number } };
+	});
+	return { pool, server, rows: result.attention.rows.length, total: result.attention.total };
 }
 
 describe('statements per board request', () => {
@@ -112,9 +84,9 @@ describe('statements per board request', () => {
 
 	it('are as many for 500 fixtures as for 50', async () => {
 		await growTo(50);
-		const small = await countStatements();
+		const small = await countBoard();
 		await growTo(500);
-		const large = await countStatements();
+		const large = await countBoard();
 		expect(small).toMatchObject({ rows: 50, total: 50 });
 		// A page of 100 rows, of all 500.
 		expect(large).toMatchObject({ rows: 100, total: 500 });

@@ -58,7 +58,7 @@ describe('/policies', () => {
 			'other'
 		]);
 		for (const t of data.types) {
-			expect(t.fields).toHaveLength(12);
+			expect(t.fields).toHaveLength(13);
 			for (const f of t.fields)
 				expect(['source', 'common practice', 'from memory']).toContain(f.basis?.basis);
 		}

@@ -117,6 +117,47 @@ describe('demo seed', () => {
 		expect(report.differing).toEqual([]);
 	});
 
+	it('has work orders in every status: one overdue, one done by a part swap, the technician’s week', async () => {
+		const { listWorkOrders, openFlagsWithoutOrder, getWorkOrder } =
+			await import('$lib/server/work-orders');
+		const today = new Date().toISOString().slice(0, 10);
+		const { items } = await listWorkOrders({}, today);
+		expect(new Set(items.map((o) => o.status))).toEqual(
+			new Set(['planned', 'scheduled', 'underway', 'done', 'cancelled'])
+		);
+		// Overdue first.
+		expect(items[0].status).toBe('scheduled');
+		expect(items[0].dueOn! < today).toBe(true);
+		expect(
+			items.filter(
+				(o) => o.dueOn && o.dueOn < today && o.status !== 'done' && o.status !== 'cancelled'
+			)
+		).toHaveLength(1);
+		const done = items.find((o) => o.status === 'done')!;
+		const doneHistory = (await getWorkOrder(done.id))!.history;
+		const [swap] = await db
+			.select({ id: schema.events.id })
+			.from(schema.events)
+			.where(eq(schema.events.id, doneHistory.at(-1)!.eventId!));
+		expect(swap).toBeDefined();
+		expect(doneHistory.map((h) => h.what)).toEqual(['created', 'done']);
+		const weekEnd = new Date(Date.now() + 7 * 86_400_000).toISOString().slice(0, 10);
+		const techWeek = items.filter(
+			(o) =>
+				o.assigneeEmail &&
+				/tech/i.test(o.assigneeEmail) &&
+				o.dueOn &&
+				o.dueOn <= weekEnd &&
+				['scheduled', 'underway'].includes(o.status)
+		);
+		expect(techWeek.length).toBeGreaterThanOrEqual(3);
+		const unplanned = (await openFlagsWithoutOrder()).map((f) => f.kind);
+		expect(unplanned).toEqual(
+			expect.arrayContaining(['replace-now', 'inspection-due', 'break-in-due'])
+		);
+		expect(items.some((o) => o.flags.length > 0)).toBe(true);
+	});
+
 	it('attaches a generated photo to each inspection that found wear worth a picture', async () => {
 		const inspections = await db
 			.select({ id: schema.events.id, payload: schema.events.payload })
@@ -153,6 +194,7 @@ describe('demo seed', () => {
 		expect(second.policies).toBe(0);
 		expect(second.fixtures.added).toBe(0);
 		expect(second.history).toEqual({ fixtures: 0, events: 0, photos: 0 });
+		expect(second.workOrders).toBe(0);
 		expect(await counts()).toEqual(before);
 		const [renamed] = await db.select().from(schema.fixtures).where(eq(schema.fixtures.code, code));
 		expect(renamed.name).toBe('Renamed by the shop');
