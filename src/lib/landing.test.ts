@@ -6,13 +6,13 @@ describe('landing per role', () => {
 		expect(landingFor(['operator'])).toBe('/scan');
 		expect(landingFor(['technician'])).toBe('/my-work');
 		expect(landingFor(['supervisor'])).toBe('/board');
-		expect(landingFor(['planner'])).toBe('/board');
+		expect(landingFor(['planner'])).toBe('/plan');
 		expect(landingFor(['admin'])).toBe('/board');
 	});
 
 	it('takes the first of supervisor, planner, technician, operator a person holds', () => {
 		expect(landingFor(['operator', 'technician'])).toBe('/my-work');
-		expect(landingFor(['technician', 'planner'])).toBe('/board');
+		expect(landingFor(['technician', 'planner'])).toBe('/plan');
 		expect(landingFor(['operator', 'supervisor'])).toBe('/board');
 		expect(landingFor(['admin', 'operator'])).toBe('/scan');
 	});

@@ -7,7 +7,7 @@ import type { Role } from './schemas/roles';
 /** Each role's landing page. */
 export const LANDING: Readonly<Record<Role, string>> = {
 	supervisor: '/board',
-	planner: '/board', // until the planner's own pages exist
+	planner: '/plan',
 	technician: '/my-work',
 	operator: '/scan',
 	admin: '/board'

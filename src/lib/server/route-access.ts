@@ -69,6 +69,21 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 	'/(app)/board/report': { page: 'fleet.view' },
 	'/(app)/board/report.pdf': { methods: { GET: 'fleet.view' } },
 
+	// The planner's work orders: the list with its bulk actions, a new order, one order.
+	'/(app)/plan': {
+		page: 'work-order.plan',
+		actions: {
+			assign: 'work-order.plan',
+			reschedule: 'work-order.plan',
+			fromFlag: 'work-order.plan'
+		}
+	},
+	'/(app)/plan/new': { page: 'work-order.plan', actions: { default: 'work-order.plan' } },
+	'/(app)/plan/[id]': {
+		page: 'work-order.plan',
+		actions: { save: 'work-order.plan', status: 'work-order.plan' }
+	},
+
 	// Administration.
 	'/(admin)/admin/users': {
 		page: 'user.admin',

@@ -1,6 +1,6 @@
 import AxeBuilder from '@axe-core/playwright';
 import { expect, test, type Page } from '@playwright/test';
-import { signInAs } from '../helpers/auth';
+import { signInAs, untilHydrated } from '../helpers/auth';
 
 /** axe-core's findings of serious or critical impact on the page as it is now. */
 async function seriousViolations(page: Page) {
@@ -41,6 +41,22 @@ test.describe('accessibility (axe-core: no serious or critical findings)', () =>
 			.first()
 			.click();
 		await expect(page.getByRole('heading', { name: 'DT-2 kinematic pallet B' })).toBeVisible();
+		expect(await seriousViolations(page)).toEqual([]);
+	});
+
+	test('the planner’s list', async ({ page }) => {
+		await signInAs(page, 'planner', '/plan');
+		await expect(
+			page.getByRole('heading', { name: 'Open flags with no work order yet' })
+		).toBeVisible();
+		expect(await seriousViolations(page)).toEqual([]);
+	});
+
+	test('a new work order, with its field messages showing', async ({ page }) => {
+		await signInAs(page, 'planner', '/plan/new');
+		await untilHydrated(page);
+		await page.getByRole('button', { name: 'Create work order' }).click();
+		await expect(page.getByRole('alert')).toBeVisible();
 		expect(await seriousViolations(page)).toEqual([]);
 	});
 

@@ -70,7 +70,7 @@ test.describe('the fleet board', () => {
 		const context = await browser.newContext({ javaScriptEnabled: false });
 		const page = await context.newPage();
 		try {
-			await signInAs(page, 'planner', undefined, { javaScript: false });
+			await signInAs(page, 'planner', '/board', { javaScript: false });
 			await expect(page).toHaveURL(/\/board$/);
 			await filters(page).getByLabel('Flag').selectOption('replace-now');
 			await page.getByRole('button', { name: 'Show' }).click();

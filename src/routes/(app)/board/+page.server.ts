@@ -2,7 +2,9 @@ import { parseFleetQuery } from '$lib/schemas/fleet';
 import { readFleetTrendsQuery } from '$lib/schemas/fleet-trends';
 import { fleetSummary } from '$lib/server/fleet';
 import { fleetTrends } from '$lib/server/fleet-trends';
+import { can } from '$lib/permissions';
 import { requireUser } from '$lib/server/guard';
+import { plannedByFlag } from '$lib/server/plan-pages';
 import * as places from '$lib/server/places';
 import type { PageServerLoad } from './$types';
 
@@ -19,8 +21,13 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 		places.tree(),
 		trendsQuery.success ? fleetTrends(actor, trendsQuery.data) : null
 	]);
+	const planned = await plannedByFlag(
+		summary.attention.rows.flatMap((r) => r.flags.map((f) => f.id))
+	);
 	return {
 		summary,
+		planned,
+		canPlan: can(actor, 'work-order.plan'),
 		query,
 		queryErrors: errors,
 		tree,
