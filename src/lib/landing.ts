@@ -8,7 +8,7 @@ import type { Role } from './schemas/roles';
 export const LANDING: Readonly<Record<Role, string>> = {
 	supervisor: '/board',
 	planner: '/board', // until the planner's own pages exist
-	technician: '/my-work',
+	technician: '/work',
 	operator: '/scan',
 	admin: '/board'
 };

@@ -88,7 +88,7 @@ export async function myWorkOrders(userId: string): Promise<{
 		getMeta('myWorkOrders'),
 		getMeta('snapshotCheckedAt')
 	]);
-	let stored: StoredWorkOrders | null = null;
+	let stored: StoredWorkOrders | null;
 	try {
 		stored = raw ? (JSON.parse(raw) as StoredWorkOrders) : null;
 	} catch {
@@ -125,4 +125,9 @@ export async function storeSnapshot(
 /** Updates one fixture in the stored copy (the card saw fresher data from the server). */
 export async function putSnapshotFixture(fixture: SnapshotFixture): Promise<void> {
 	await (await clientDb()).put('snapshot', fixture);
+}
+
+/** Every fixture the device holds (for lists built on the phone, such as what is due). */
+export async function allFixtures(): Promise<SnapshotFixture[]> {
+	return (await clientDb()).getAll('snapshot');
 }

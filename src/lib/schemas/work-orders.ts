@@ -5,7 +5,6 @@
  */
 import { z } from 'zod';
 import {
-	OPEN_WORK_ORDER_STATUSES,
 	WORK_ORDER_ACTIONS,
 	WORK_ORDER_LIMITS as L,
 	WORK_ORDER_STATUSES
