@@ -58,12 +58,12 @@ export default defineConfig({
 				clientsClaim: true,
 				runtimeCaching: [
 					{
-						// The floor pages (start, scanner, fixture cards and their break-in runs, outbox):
+						// The floor pages (start, scanner, my work, fixture cards and their break-in runs, outbox):
 						// what must open with no network. Office pages always come from the server. (Functions here are copied
 						// into the worker as source text, so they cannot refer to anything outside.)
 						urlPattern: ({ request, url }) =>
 							request.mode === 'navigate' &&
-							/^\/($|scan$|outbox$|f\/[^/]+(\/break-in)?$)/.test(url.pathname),
+							/^\/($|scan$|outbox$|work$|f\/[^/]+(\/break-in)?$)/.test(url.pathname),
 						handler: 'NetworkFirst',
 						options: {
 							cacheName: 'nestmark-pages',

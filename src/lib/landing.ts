@@ -8,7 +8,7 @@ import type { Role } from './schemas/roles';
 export const LANDING: Readonly<Record<Role, string>> = {
 	supervisor: '/board',
 	planner: '/plan',
-	technician: '/my-work',
+	technician: '/work',
 	operator: '/scan',
 	admin: '/board'
 };

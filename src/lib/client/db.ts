@@ -71,6 +71,11 @@ export interface MetaValues {
 	snapshotEtag: string;
 	/** When the stored snapshot was last confirmed current (ISO 8601). */
 	snapshotCheckedAt: string;
+	/**
+	 * JSON `{ userId, orders }`: the open work orders assigned to the person the snapshot was
+	 * fetched for (`/work` reads it offline); stored with the snapshot, in its transaction.
+	 */
+	myWorkOrders: string;
 }
 
 interface NestmarkDB extends DBSchema {

@@ -4,10 +4,10 @@
  * costs one 304.
  */
 import { normaliseFixtureCode } from '$lib/domain/fixture-code';
-import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
+import type { SnapshotFixture, SnapshotWorkOrder } from '$lib/schemas/register-snapshot';
 import { clientDb, getMeta, setMeta } from './db';
 
-export type { SnapshotFixture } from '$lib/schemas/register-snapshot';
+export type { SnapshotFixture, SnapshotWorkOrder } from '$lib/schemas/register-snapshot';
 
 /**
  * The stored register entry for `code` (any spelling a person or scanner gives: case, dashes,
@@ -61,12 +61,54 @@ export async function refreshSnapshot(fetcher: typeof fetch = fetch): Promise<Re
 	const { registerSnapshotSchema } = await import('$lib/schemas/register-snapshot');
 	const parsed = registerSnapshotSchema.safeParse(await res.json());
 	if (!parsed.success) return { status: 'failed', error: 'The register copy was not readable.' };
-	await storeSnapshot(parsed.data.fixtures, res.headers.get('ETag') ?? parsed.data.version);
+	const { fixtures, workOrders, workOrdersFor } = parsed.data;
+	await storeSnapshot(
+		fixtures,
+		res.headers.get('ETag') ?? parsed.data.version,
+		workOrdersFor ? { userId: workOrdersFor, orders: workOrders ?? [] } : undefined
+	);
 	return { status: 'updated', count: parsed.data.fixtures.length };
 }
 
-/** Replaces the stored register with `fixtures` (one transaction: never half old, half new). */
-export async function storeSnapshot(fixtures: SnapshotFixture[], etag: string): Promise<void> {
+/** The work orders a register copy carries, and whose they are. */
+export interface StoredWorkOrders {
+	userId: string;
+	orders: SnapshotWorkOrder[];
+}
+
+/**
+ * The open work orders stored with the register copy for `userId`: empty when the copy was made
+ * for someone else (another person signed in on this phone) or before work orders existed.
+ */
+export async function myWorkOrders(userId: string): Promise<{
+	orders: SnapshotWorkOrder[];
+	checkedAt: string | undefined;
+}> {
+	const [raw, checkedAt] = await Promise.all([
+		getMeta('myWorkOrders'),
+		getMeta('snapshotCheckedAt')
+	]);
+	let stored: StoredWorkOrders | null;
+	try {
+		stored = raw ? (JSON.parse(raw) as StoredWorkOrders) : null;
+	} catch {
+		stored = null;
+	}
+	return {
+		orders: stored && stored.userId === userId && Array.isArray(stored.orders) ? stored.orders : [],
+		checkedAt
+	};
+}
+
+/**
+ * Replaces the stored register with `fixtures` (one transaction: never half old, half new), and
+ * the work orders with `workOrders` (an answer without them leaves none stored).
+ */
+export async function storeSnapshot(
+	fixtures: SnapshotFixture[],
+	etag: string,
+	workOrders?: StoredWorkOrders
+): Promise<void> {
 	const db = await clientDb();
 	const tx = db.transaction(['snapshot', 'meta'], 'readwrite');
 	const store = tx.objectStore('snapshot');
@@ -75,10 +117,17 @@ export async function storeSnapshot(fixtures: SnapshotFixture[], etag: string): 
 	const meta = tx.objectStore('meta');
 	await meta.put(etag, 'snapshotEtag');
 	await meta.put(new Date().toISOString(), 'snapshotCheckedAt');
+	if (workOrders) await meta.put(JSON.stringify(workOrders), 'myWorkOrders');
+	else await meta.delete('myWorkOrders');
 	await tx.done;
 }
 
 /** Updates one fixture in the stored copy (the card saw fresher data from the server). */
 export async function putSnapshotFixture(fixture: SnapshotFixture): Promise<void> {
 	await (await clientDb()).put('snapshot', fixture);
+}
+
+/** Every fixture the device holds (for lists built on the phone, such as what is due). */
+export async function allFixtures(): Promise<SnapshotFixture[]> {
+	return (await clientDb()).getAll('snapshot');
 }

@@ -57,24 +57,38 @@ export interface InspectionContact {
 
 /**
  * Payloads as sent: fields with a default (reseat cycles, inspection marks and photos, break-in
- * readings) may be left out, and the fold fills them in the way the schemas do.
+ * readings) may be left out, and the fold fills them in the way the schemas do. Every kind may
+ * carry `workOrderId`, the work order the entry carries out (optional, so older phones' entries
+ * stay valid); the fold ignores it, ingest applies it to the order (`$lib/server/ingest-work-orders`).
  */
 export interface EventPayloadInputs {
-	reseat: { cycles?: number; readings?: EventReading };
-	cleaning: { method: CleaningMethod; relubricated: boolean; lubricant?: string; note?: string };
+	reseat: { cycles?: number; readings?: EventReading; workOrderId?: number };
+	cleaning: {
+		method: CleaningMethod;
+		relubricated: boolean;
+		lubricant?: string;
+		note?: string;
+		workOrderId?: number;
+	};
 	inspection: {
 		contacts: InspectionContact[];
 		verdict: InspectionVerdict;
 		photoIds?: string[];
 		note?: string;
+		workOrderId?: number;
 	};
-	'break-in': { cycles: number; readings?: EventReading[]; note?: string };
-	'part-swap': { replaced: SwappablePart[]; description?: string; note?: string };
+	'break-in': { cycles: number; readings?: EventReading[]; note?: string; workOrderId?: number };
+	'part-swap': {
+		replaced: SwappablePart[];
+		description?: string;
+		note?: string;
+		workOrderId?: number;
+	};
 	/** A move made in the register also names where the fixture was. */
-	move: { locationId: string; fromLocationId?: string; note?: string };
-	hold: { reason: string };
-	release: { note?: string };
-	note: { text: string };
+	move: { locationId: string; fromLocationId?: string; note?: string; workOrderId?: number };
+	hold: { reason: string; workOrderId?: number };
+	release: { note?: string; workOrderId?: number };
+	note: { text: string; workOrderId?: number };
 }
 
 /** A validated event as the computation core folds it. */

@@ -54,6 +54,17 @@ const cycles = (field: string) =>
 		.min(1, `${field} must be at least 1`)
 		.max(MAX_CYCLES_PER_EVENT, `${field} must be at most ${MAX_CYCLES_PER_EVENT}`);
 
+/**
+ * The work order an entry carries out (any kind may carry one; optional, so entries of phones
+ * from before work orders stay valid). Ingest checks that the order exists and is the fixture's.
+ */
+const workOrderId = z
+	.number({ error: 'Work order id must be a number' })
+	.int('Work order id must be a whole number')
+	.positive('Work order id must be a work order number')
+	.max(2_147_483_647, 'Work order id is too large')
+	.optional();
+
 const unique = <T>(items: readonly T[]) => new Set(items).size === items.length;
 
 /** One seating's indicator readings in µm; at least one axis. */
@@ -69,6 +80,7 @@ export const readingSchema = z
 
 /** Reseat: cycles (default 1) and optional readings of the last seating. */
 export const reseatPayloadSchema = z.strictObject({
+	workOrderId,
 	cycles: cycles('Cycles').default(1),
 	readings: readingSchema.optional()
 });
@@ -76,6 +88,7 @@ export const reseatPayloadSchema = z.strictObject({
 /** Cleaning: method, whether the contacts were relubricated, and with what. */
 export const cleaningPayloadSchema = z
 	.strictObject({
+		workOrderId,
 		method: z.enum(CLEANING_METHODS, {
 			error: `Method must be one of: ${CLEANING_METHODS.join(', ')}`
 		}),
@@ -101,6 +114,7 @@ export const inspectionContactSchema = z.strictObject({
 
 /** Inspection: graded contacts, verdict, photo ids. */
 export const inspectionPayloadSchema = z.strictObject({
+	workOrderId,
 	contacts: z
 		.array(inspectionContactSchema)
 		.min(1, 'Grade at least one contact')
@@ -120,6 +134,7 @@ export const inspectionPayloadSchema = z.strictObject({
 /** Break-in run: cycles and the readings taken during it, oldest first. */
 export const breakInPayloadSchema = z
 	.strictObject({
+		workOrderId,
 		cycles: cycles('Cycles'),
 		readings: z
 			.array(readingSchema)
@@ -135,6 +150,7 @@ export const breakInPayloadSchema = z
 /** Part swap: what was replaced. */
 export const partSwapPayloadSchema = z
 	.strictObject({
+		workOrderId,
 		replaced: z
 			.array(
 				z.enum(SWAPPABLE_PARTS, { error: `Part must be one of: ${SWAPPABLE_PARTS.join(', ')}` })
@@ -152,19 +168,23 @@ export const partSwapPayloadSchema = z
 
 /** Move to another location (by id); a move made in the register also names where it was. */
 export const movePayloadSchema = z.strictObject({
+	workOrderId,
 	locationId: text('Location', 64),
 	fromLocationId: text('Previous location', 64).optional(),
 	note: text('Note', 500).optional()
 });
 
 /** Hold: take out of service, with the reason. */
-export const holdPayloadSchema = z.strictObject({ reason: text('Reason', 500) });
+export const holdPayloadSchema = z.strictObject({ workOrderId, reason: text('Reason', 500) });
 
 /** Release from hold. */
-export const releasePayloadSchema = z.strictObject({ note: text('Note', 500).optional() });
+export const releasePayloadSchema = z.strictObject({
+	workOrderId,
+	note: text('Note', 500).optional()
+});
 
 /** Free-text note. */
-export const notePayloadSchema = z.strictObject({ text: text('Text', 2000) });
+export const notePayloadSchema = z.strictObject({ workOrderId, text: text('Text', 2000) });
 
 /** Payload schema of each kind. */
 export const PAYLOAD_SCHEMAS = {

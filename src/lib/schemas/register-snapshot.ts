@@ -1,11 +1,22 @@
 import { z } from 'zod';
+import { OPEN_WORK_ORDER_STATUSES, WORK_ORDER_ACTIONS } from '../domain/work-orders';
 import { FIXTURE_STATUSES, FIXTURE_TYPES, FLAG_KINDS } from './fixture';
+
+/** The open work order that answers a flag: "planned for DATE · ASSIGNEE". */
+export const snapshotPlannedWorkSchema = z.object({
+	workOrderId: z.number().int(),
+	dueOn: z.string().nullable(),
+	assignee: z.string().nullable()
+});
+export type SnapshotPlannedWork = z.infer<typeof snapshotPlannedWorkSchema>;
 
 /** An open health flag as the card shows it. */
 export const snapshotFlagSchema = z.object({
 	kind: z.enum(FLAG_KINDS),
 	reason: z.string(),
-	raisedAt: z.string()
+	raisedAt: z.string(),
+	/** The open work order that answers it, soonest due first; absent in older copies. */
+	plannedWork: snapshotPlannedWorkSchema.optional()
 });
 
 /**
@@ -80,11 +91,40 @@ export const snapshotFixtureSchema = z.object({
 });
 export type SnapshotFixture = z.infer<typeof snapshotFixtureSchema>;
 
+/** One open work order assigned to the person the copy was made for: what `/work` shows. */
+export const snapshotWorkOrderSchema = z.object({
+	id: z.number().int(),
+	fixtureCode: z.string(),
+	fixtureName: z.string(),
+	action: z.enum(WORK_ORDER_ACTIONS),
+	actionText: z.string().nullable(),
+	status: z.enum(OPEN_WORK_ORDER_STATUSES),
+	dueOn: z.string().nullable(),
+	parts: z.array(
+		z.object({
+			description: z.string(),
+			quantity: z.number(),
+			size: z.string().optional(),
+			material: z.string().optional()
+		})
+	),
+	notes: z.string().nullable(),
+	/** Reasons of the open flags it answers. */
+	flagReasons: z.array(z.string())
+});
+export type SnapshotWorkOrder = z.infer<typeof snapshotWorkOrderSchema>;
+
 /** Body of `GET /api/register-snapshot`; `version` is the same value as the ETag. */
 export const registerSnapshotSchema = z.object({
 	version: z.string(),
 	generatedAt: z.string(),
-	fixtures: z.array(snapshotFixtureSchema)
+	fixtures: z.array(snapshotFixtureSchema),
+	/**
+	 * The open work orders assigned to `workOrdersFor` (the user id the copy was made for).
+	 * Absent in answers from before work orders, and in one-fixture answers (`?code=`).
+	 */
+	workOrders: z.array(snapshotWorkOrderSchema).optional(),
+	workOrdersFor: z.string().optional()
 });
 export type RegisterSnapshot = z.infer<typeof registerSnapshotSchema>;
 

@@ -30,6 +30,7 @@ import {
 	type Queryable
 } from './db/health-sql';
 import { inTransaction } from './db/transaction';
+import { linkRaisedFlags } from './ingest-work-orders';
 import {
 	diffFlags,
 	flagRows,
@@ -157,6 +158,13 @@ export async function reevaluateOn(
 		writes.push(...flagRows(f.id, diff, now));
 	}
 	await writeFlags(conn, writes);
+	// A calendar flag raised while an order that answers it is open joins that order.
+	await linkRaisedFlags(
+		conn,
+		changes.flatMap((c) => c.raised.map((kind) => ({ fixtureId: c.fixtureId, kind }))),
+		null,
+		now
+	);
 	return changes;
 }
 

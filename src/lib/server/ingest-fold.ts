@@ -72,7 +72,7 @@ interface Folded {
 
 /**
  * Folds the new events (already inserted) into their fixtures' locked states, diffs the flags and
- * writes states, flags and the register's status in a few statements.
+ * writes states, flags and the register's status in a few statements. Returns the flags raised.
  */
 export async function foldNewEvents(
 	conn: PoolConnection,
@@ -80,7 +80,7 @@ export async function foldNewEvents(
 	locked: Map<number, StoredState>,
 	policies: Map<number, Policy>,
 	now: Date
-): Promise<void> {
+): Promise<{ fixtureId: number; kind: Flag['kind'] }[]> {
 	const byFixture = new Map<number, { fixture: HealthFixture; events: FixtureEvent[] }>();
 	for (const { event, fixture } of fresh) {
 		let group = byFixture.get(fixture.id);
@@ -103,6 +103,9 @@ export async function foldNewEvents(
 		folded.flatMap((f) => f.flags)
 	);
 	await syncFixtureStatus(conn, folded);
+	return folded.flatMap((f) =>
+		f.flags.filter((r) => r.id === null).map((r) => ({ fixtureId: f.fixtureId, kind: r.kind }))
+	);
 }
 
 /**

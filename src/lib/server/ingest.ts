@@ -35,7 +35,10 @@
  * - Speed. A handful of statements per batch, not per event: one lookup of the fixtures, one of
  *   their policies, one of the existing ids, one locking read of the states with their open flags,
  *   one multi-row insert of the events, one multi-row upsert of the states and one of the flags
- *   (the statements are in db/health-sql.ts; the fold step in ingest-fold.ts).
+ *   (the statements are in db/health-sql.ts; the fold step in ingest-fold.ts). Events carrying a
+ *   `workOrderId` add one locking read of those orders (before the states, the same order for
+ *   every batch), one update and one history insert; flags raised add one read and two inserts
+ *   when they link to open orders (ingest-work-orders.ts).
  */
 import { createHash } from 'node:crypto';
 import type { PoolConnection } from 'mysql2/promise';
@@ -66,6 +69,13 @@ import {
 	type Sender,
 	type SyncResult
 } from './ingest-insert';
+import {
+	applyOrderEffects,
+	linkRaisedFlags,
+	lockOrders,
+	orderReferenceRefusal,
+	type LockedOrder
+} from './ingest-work-orders';
 import { policiesFor } from './state-store';
 
 /** Largest sync request body accepted (declared and actually read). */
@@ -312,7 +322,12 @@ async function judgeAndStore(
 	items: Item[],
 	policies: Map<number, Policy>
 ): Promise<void> {
-	const candidates = await judgeNew(conn, sender, items);
+	// Orders first, then states: every writer takes them in this order, so none deadlock.
+	const orders = await lockOrders(
+		conn,
+		items.filter((i) => i.event && i.fixture && !i.repeatOf)
+	);
+	const candidates = await judgeNew(conn, sender, items, orders);
 	if (candidates.length) {
 		const locked = await lockStates(
 			conn,
@@ -321,7 +336,12 @@ async function judgeAndStore(
 		);
 		const fresh = await insertNew(conn, sender, candidates);
 		const newEvents = fresh.map((i) => ({ event: i.event!, fixture: i.fixture! }));
-		if (fresh.length) await foldNewEvents(conn, newEvents, locked, policies, sender.now);
+		if (fresh.length) {
+			const raised = await foldNewEvents(conn, newEvents, locked, policies, sender.now);
+			// Orders move before flags link, so an order this batch completed takes no new flag.
+			await applyOrderEffects(conn, sender, fresh, orders);
+			await linkRaisedFlags(conn, raised, sender.actor.id, sender.now);
+		}
 	}
 	judgeRepeats(items);
 }
@@ -331,12 +351,18 @@ async function judgeAndStore(
  * re-sent after another person signed in on the phone, or after its fixture was renamed; then it
  * is a duplicate, not a refusal) and returns the rest, which may be stored.
  */
-async function judgeNew(conn: PoolConnection, sender: Sender, items: Item[]): Promise<Item[]> {
+async function judgeNew(
+	conn: PoolConnection,
+	sender: Sender,
+	items: Item[],
+	orders: Map<number, LockedOrder>
+): Promise<Item[]> {
 	const candidates: Item[] = [];
 	const refused: { item: Item; why: string }[] = [];
 	for (const item of items) {
 		if (!item.event || item.repeatOf) continue;
-		const why = refusal(item, sender.actor, sender.now);
+		const why =
+			refusal(item, sender.actor, sender.now) ?? orderReferenceRefusal(item, orders, sender);
 		if (why) refused.push({ item, why });
 		else candidates.push(item);
 	}

@@ -3,16 +3,20 @@ import { asc, eq, isNull } from 'drizzle-orm';
 import type { FixtureState } from '$lib/domain/health';
 import { inspectionContactNames } from '$lib/domain/inspection-contacts';
 import type { Policy } from '$lib/domain/policy';
-import type { SnapshotFixture } from '$lib/schemas/register-snapshot';
+import type { SnapshotFixture, SnapshotWorkOrder } from '$lib/schemas/register-snapshot';
 import type { Actor } from './guard';
 import { indexPolicyRows, policyValues, resolvePolicy } from './policies';
 import { db, schema } from './db';
 import { withPlace } from './db/place-join';
+import { plannedWorkByFlag } from './register-snapshot-work';
 import { initialStateFor } from './state-store';
+
+export { myOpenWorkOrders } from './register-snapshot-work';
 
 /*
  * The copy of the register a phone keeps for offline use: per fixture, what the card shows
- * (identity, place, status, open flags, caution inputs, policy figures, counters). Its ETag is a
+ * (identity, place, status, open flags with the work planned for them, caution inputs, policy
+ * figures, counters), and the open work orders of the person it is for. Its ETag is a
  * hash of the content itself, so it changes exactly when something a device shows changes.
  */
 
@@ -39,11 +43,12 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 		.from(fixtures)
 		.$dynamic();
 	const withState = withPlace(base).leftJoin(fixtureState, eq(fixtureState.fixtureId, fixtures.id));
-	const [rows, policyRows, openFlags] = await Promise.all([
+	const [rows, policyRows, openFlags, planned] = await Promise.all([
 		(code ? withState.where(eq(fixtures.code, code)) : withState).orderBy(asc(fixtures.code)),
 		db.select().from(policies),
 		db
 			.select({
+				id: flags.id,
 				fixtureId: flags.fixtureId,
 				kind: flags.kind,
 				reason: flags.reason,
@@ -51,7 +56,8 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 			})
 			.from(flags)
 			.where(isNull(flags.clearedAt))
-			.orderBy(asc(flags.raisedAt), asc(flags.id))
+			.orderBy(asc(flags.raisedAt), asc(flags.id)),
+		plannedWorkByFlag()
 	]);
 
 	const contactsOf = await geometryContacts(rows.map((r) => r.f.id));
@@ -59,7 +65,13 @@ export async function snapshotFixtures(_actor: Actor, code?: string): Promise<Sn
 	const flagsOf = new Map<number, SnapshotFixture['flags']>();
 	for (const fl of openFlags) {
 		const list = flagsOf.get(fl.fixtureId) ?? [];
-		list.push({ kind: fl.kind, reason: fl.reason, raisedAt: fl.raisedAt.toISOString() });
+		const plannedWork = planned.get(fl.id);
+		list.push({
+			kind: fl.kind,
+			reason: fl.reason,
+			raisedAt: fl.raisedAt.toISOString(),
+			...(plannedWork ? { plannedWork } : {})
+		});
 		flagsOf.set(fl.fixtureId, list);
 	}
 
@@ -137,9 +149,13 @@ async function geometryContacts(fixtureIds: number[]): Promise<Map<number, strin
 	return out;
 }
 
-/** A strong ETag over the content: same entries, same tag, on any server. */
-export function snapshotEtag(entries: SnapshotFixture[]): string {
-	const hash = createHash('sha256').update(JSON.stringify(entries)).digest('base64url');
+/**
+ * A strong ETag over the content: same entries (and work orders, which are the person's own),
+ * same tag, on any server.
+ */
+export function snapshotEtag(entries: SnapshotFixture[], workOrders?: SnapshotWorkOrder[]): string {
+	const content = workOrders ? { entries, workOrders } : entries;
+	const hash = createHash('sha256').update(JSON.stringify(content)).digest('base64url');
 	return `"${hash.slice(0, 32)}"`;
 }
 

@@ -59,7 +59,10 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 	'/(app)/labels': { page: 'label.print' },
 	// The fleet: the board for whoever watches or plans it; the due list for anyone.
 	'/(app)/board': { page: 'fleet.view' },
+	// The old due list now lives in /work; its address answers with a redirect there.
 	'/(app)/my-work': { page: 'fixture.view' },
+	// The technician's phone: work orders assigned to them, and what is due; read on the device.
+	'/(app)/work': { page: 'work-order.carry-out' },
 	'/(app)/policies': {
 		page: 'policy.edit',
 		actions: { saveType: 'policy.edit', saveOverrides: 'policy.edit' }

@@ -61,7 +61,7 @@ test.describe('accessibility (axe-core: no serious or critical findings)', () =>
 	});
 
 	test('the technician’s due work', async ({ page }) => {
-		await signInAs(page, 'technician', '/my-work');
+		await signInAs(page, 'technician', '/work');
 		await expect(page.getByRole('heading', { name: 'My work' })).toBeVisible();
 		expect(await seriousViolations(page)).toEqual([]);
 	});

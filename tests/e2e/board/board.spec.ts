@@ -109,7 +109,7 @@ test.describe('the fleet board', () => {
 
 	test('a technician lands on their due work', async ({ page }) => {
 		await signInAs(page, 'technician');
-		await expect(page).toHaveURL(/\/my-work$/);
+		await expect(page).toHaveURL(/\/work$/);
 		await expect(page.getByRole('heading', { name: 'My work', level: 1 })).toBeVisible();
 		await expect(
 			page.getByRole('listitem').filter({ hasText: 'Cleaning due' }).first()

@@ -1,4 +1,4 @@
-/** Wording of the board's numbers: ages and the figures behind a flag. Pure, shared with /my-work. */
+/** Wording of the board's numbers: ages and the figures behind a flag. Pure, shared with /work. */
 import { num } from '$lib/domain/flag-words';
 
 /** How long ago, short: "just now", "25 min", "5 h", "3 d", "11 wk". */

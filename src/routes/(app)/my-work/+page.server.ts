@@ -1,8 +1,7 @@
-import { dueWork } from '$lib/server/fleet';
-import { requireUser } from '$lib/server/guard';
+import { redirect } from '@sveltejs/kit';
 import type { PageServerLoad } from './$types';
 
-export const load: PageServerLoad = async ({ locals }) => {
-	const actor = requireUser(locals, 'fixture.view');
-	return { due: await dueWork(actor), generatedAt: new Date().toISOString() };
+/** The due list became part of `/work` (work orders first, then what is due and not planned). */
+export const load: PageServerLoad = () => {
+	redirect(308, '/work');
 };

@@ -11,7 +11,7 @@ const CACHE_CONTROL = 'private, no-cache';
 
 /**
  * The register as a device keeps it offline. `?code=` narrows it to one fixture (the fixture
- * card's online load). Answers 304 when If-None-Match names the current ETag.
+ * card's online load; it then carries no work orders). Answers 304 when If-None-Match names the current ETag.
  */
 export const GET: RequestHandler = async ({ locals, url, request }) => {
 	const actor = apiUser(locals);
@@ -25,11 +25,15 @@ export const GET: RequestHandler = async ({ locals, url, request }) => {
 		code = reading.code;
 	}
 
-	const entries = await snapshot.snapshotFixtures(actor, code);
+	// The whole copy also carries the person's own open work orders (for /work, offline).
+	const [entries, workOrders] = await Promise.all([
+		snapshot.snapshotFixtures(actor, code),
+		code ? undefined : snapshot.myOpenWorkOrders(actor)
+	]);
 	if (code && entries.length === 0) {
 		return apiError(404, `No fixture with code ${code}.`);
 	}
-	const etag = snapshot.snapshotEtag(entries);
+	const etag = snapshot.snapshotEtag(entries, workOrders);
 	const headers = { ETag: etag, 'Cache-Control': CACHE_CONTROL, Vary: 'Cookie' };
 	if (snapshot.etagMatches(request.headers.get('if-none-match'), etag)) {
 		return new Response(null, { status: 304, headers });
@@ -37,7 +41,8 @@ export const GET: RequestHandler = async ({ locals, url, request }) => {
 	const body: RegisterSnapshot = {
 		version: etag.slice(1, -1),
 		generatedAt: new Date().toISOString(),
-		fixtures: entries
+		fixtures: entries,
+		...(workOrders ? { workOrders, workOrdersFor: actor.id } : {})
 	};
 	return json(body, { headers });
 };
