@@ -1,12 +1,19 @@
 import { randomUUID } from 'node:crypto';
 import type { RowDataPacket } from 'mysql2/promise';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { generateFixtureCode } from '$lib/domain/fixture-code';
 import { getPool } from '$lib/server/db';
 import type { Actor } from '$lib/server/guard';
 import { ingestBatch } from '$lib/server/ingest';
 import { GET as getSummary } from '../../../src/routes/api/fleet/summary/+server';
-import { closeDb, db, makeLocation, makeUser, resetDb, schema } from '../helpers/db';
+import {
+	closeDb,
+	db,
+	freshFixtureCodes,
+	makeLocation,
+	makeUser,
+	resetDb,
+	schema
+} from '../helpers/db';
 import { countStatements } from '../helpers/statements';
 
 // The board must cost the same number of SQL statements for 50 fixtures as for 500. Counted two
@@ -24,8 +31,9 @@ let locationId: number;
 async function growTo(total: number) {
 	const [[{ n }]] = await getPool().query<RowDataPacket[]>('SELECT COUNT(*) AS n FROM fixtures');
 	const add = total - Number(n);
+	const codes = await freshFixtureCodes(add);
 	const rows = Array.from({ length: add }, (_, i) => ({
-		code: generateFixtureCode(),
+		code: codes[i],
 		name: `Counted fixture ${Number(n) + i + 1}`,
 		type: (i % 3 ? 'three-vee' : 'pallet') as 'three-vee' | 'pallet',
 		locationId

@@ -1,12 +1,20 @@
 import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { generateFixtureCode } from '$lib/domain/fixture-code';
 import { fleetTrendsQuerySchema } from '$lib/schemas/fleet-trends';
 import { getPool } from '$lib/server/db';
 import { fleetTrends } from '$lib/server/fleet-trends';
 import type { Actor } from '$lib/server/guard';
 import { ingestBatch } from '$lib/server/ingest';
-import { closeDb, db, makeArea, makeLocation, makeUser, resetDb, schema } from '../helpers/db';
+import {
+	closeDb,
+	db,
+	freshFixtureCodes,
+	makeArea,
+	makeLocation,
+	makeUser,
+	resetDb,
+	schema
+} from '../helpers/db';
 
 // The fleet charts read with a fixed number of statements, however many fixtures there are:
 // every statement the pool runs during one request is counted, for 50 fixtures and for 500.
@@ -20,8 +28,9 @@ const locations: number[] = [];
 
 /** Adds `n` fixtures over the locations, each with one logged reseat (state row and flag). */
 async function addFixtures(n: number) {
+	const codes = await freshFixtureCodes(n);
 	const rows = Array.from({ length: n }, (_, i) => ({
-		code: generateFixtureCode(),
+		code: codes[i],
 		name: `Fleet fixture ${randomUUID().slice(0, 8)}`,
 		type: 'three-vee' as const,
 		locationId: locations[i % locations.length]

@@ -84,6 +84,23 @@ export async function makeLocation(opts: { areaId?: number; name?: string } = {}
 	return { id: r.id, areaId, name };
 }
 
+/**
+ * `n` fixture codes no fixture has and none repeated. Random codes have 30⁴ = 810,000 bodies, so
+ * among 500 drawn at once two are alike about one time in seven (the birthday bound,
+ * 1 − exp(−n²/2N)): bulk inserts must draw them through here.
+ */
+export async function freshFixtureCodes(n: number): Promise<string[]> {
+	const taken = new Set(
+		(await db.select({ code: schema.fixtures.code }).from(schema.fixtures)).map((r) => r.code)
+	);
+	const codes = new Set<string>();
+	while (codes.size < n) {
+		const code = generateFixtureCode();
+		if (!taken.has(code)) codes.add(code);
+	}
+	return [...codes];
+}
+
 /** A fixture with a fresh valid code (in a new location unless `locationId` is given). */
 export async function makeFixture(
 	opts: Partial<typeof schema.fixtures.$inferInsert> & {
