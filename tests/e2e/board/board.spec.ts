@@ -116,8 +116,9 @@ test.describe('the fleet board', () => {
 		await expect(orders.getByRole('listitem').filter({ hasText: DRIFTING })).not.toHaveCount(0);
 		// …then routine work that no order answers; drift is not routine work.
 		const due = page.getByRole('region', { name: 'Also due, not yet planned' });
+		// (the demo's two cleanings are planned; the breadboard's inspection is not)
 		await expect(
-			due.getByRole('listitem').filter({ hasText: 'Cleaning due' }).first()
+			due.getByRole('listitem').filter({ hasText: 'Inspection due' }).first()
 		).toBeVisible();
 		await expect(due.getByText(DRIFTING)).toHaveCount(0);
 		await expect(page.getByRole('link', { name: 'Board', exact: true })).toHaveCount(0);
