@@ -50,6 +50,8 @@ export const WORK_ORDER_LIMITS = {
 
 /** One line of parts an order needs (part 2 of the plan links these to a stock list). */
 export interface WorkOrderPart {
+	/** The stock line this part is drawn from; quantities are reserved on it while the order is open. */
+	stockPartId?: number;
 	description: string;
 	quantity: number;
 	size?: string;
