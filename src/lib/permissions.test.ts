@@ -27,7 +27,10 @@ const EXPECTED: Record<Action, Role[]> = {
 	'mail.view': ['admin'],
 	'fleet.view': ['supervisor', 'planner', 'admin'],
 	'work-order.plan': ['supervisor', 'planner', 'admin'],
-	'work-order.carry-out': ['technician', 'supervisor', 'admin']
+	'work-order.carry-out': ['technician', 'supervisor', 'admin'],
+	'stock.manage': ['planner', 'admin'],
+	'office.settings': ['admin'],
+	'mail.admin': ['admin']
 };
 
 const EVERYTHING: EventKind[] = [...EVENT_KINDS];

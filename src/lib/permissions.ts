@@ -20,7 +20,10 @@ export const ACTIONS = [
 	'mail.view',
 	'fleet.view',
 	'work-order.plan',
-	'work-order.carry-out'
+	'work-order.carry-out',
+	'stock.manage',
+	'office.settings',
+	'mail.admin'
 ] as const;
 export type Action = (typeof ACTIONS)[number];
 
@@ -41,6 +44,9 @@ const FLEET = ['supervisor', 'planner', 'admin'] as const satisfies readonly Rol
 const PLANNERS = ['planner', 'supervisor', 'admin'] as const satisfies readonly Role[];
 /** Work orders are carried out by whoever may log the work they ask for. */
 const DOERS = ['technician', 'supervisor', 'admin'] as const satisfies readonly Role[];
+
+/** The spare-parts stock is kept by the planner, who reserves it, and the admin. */
+const STOCK_KEEPERS = ['planner', 'admin'] as const satisfies readonly Role[];
 
 /** Which kinds each role may log (a person with several roles may log the union). */
 export const LOG_KINDS: Readonly<Record<Role, readonly EventKind[]>> = {
@@ -69,7 +75,10 @@ export const PERMISSIONS: Readonly<Record<Action, { roles: readonly Role[]; doin
 	'mail.view': { roles: ADMIN, doing: 'read captured mail' },
 	'fleet.view': { roles: FLEET, doing: 'see the fleet board' },
 	'work-order.plan': { roles: PLANNERS, doing: 'plan work orders' },
-	'work-order.carry-out': { roles: DOERS, doing: 'carry out work orders' }
+	'work-order.carry-out': { roles: DOERS, doing: 'carry out work orders' },
+	'stock.manage': { roles: STOCK_KEEPERS, doing: 'keep the spare-parts stock' },
+	'office.settings': { roles: ADMIN, doing: 'set the office settings' },
+	'mail.admin': { roles: ADMIN, doing: 'see and retry outgoing mail' }
 };
 
 /** Whether one role may do `action` (about `subject`, where the action has one). */
