@@ -7,6 +7,10 @@ import ical, { ICalCalendarMethod, ICalEventStatus } from 'ical-generator';
 import { ACTION_LABELS } from '../schemas/plan';
 import type { WorkOrderView } from '../schemas/work-orders';
 import type { IcsMethod } from '../domain/mail';
+import { count, inArray } from 'drizzle-orm';
+import { db, type Db } from './db';
+import { workOrderHistory } from './db/schema';
+import { workOrderViews } from './work-order-reads';
 
 /** An order as the calendar shows it; `sequence` grows with every change (its history rows − 1). */
 export type IcsOrder = WorkOrderView & { sequence: number };
@@ -47,6 +51,24 @@ export function workOrderDescription(o: IcsOrder): string {
 	if (o.notes) lines.push(`Notes: ${o.notes}`);
 	if (o.status === 'cancelled' && o.cancelReason) lines.push(`Cancelled: ${o.cancelReason}`);
 	return lines.join('\n');
+}
+
+/**
+ * Views of these orders with their SEQUENCE: the number of changes after the one that created the
+ * order (history is append-only, so it only grows). Three statements whatever the number of ids.
+ */
+export async function icsOrders(ids: number[], q: Db = db): Promise<IcsOrder[]> {
+	if (!ids.length) return [];
+	const [views, counts] = await Promise.all([
+		workOrderViews(ids, q),
+		q
+			.select({ id: workOrderHistory.workOrderId, n: count() })
+			.from(workOrderHistory)
+			.where(inArray(workOrderHistory.workOrderId, ids))
+			.groupBy(workOrderHistory.workOrderId)
+	]);
+	const changes = new Map(counts.map((c) => [c.id, c.n]));
+	return views.map((v) => ({ ...v, sequence: Math.max(0, (changes.get(v.id) ?? 1) - 1) }));
 }
 
 const DAY_MS = 86_400_000;
