@@ -11,13 +11,18 @@ import { demoAccount, signInAs, untilHydrated } from '../helpers/auth';
 const today = () => new Date().toISOString().slice(0, 10);
 let taken = 0;
 
-/** A demo fixture in service with no work order, a different one on every call. */
+/**
+ * A healthy demo fixture (in service, no open flag, no work order), a different one on every
+ * call, so no other spec's flags or orders see the orders made here.
+ */
 async function freeFixture(): Promise<string> {
 	const conn = await mysql.createConnection({ uri: process.env.DATABASE_URL! });
 	try {
 		const [rows] = await conn.query<mysql.RowDataPacket[]>(
-			`SELECT code FROM fixtures WHERE status <> 'retired'
-			   AND id NOT IN (SELECT fixture_id FROM work_orders) ORDER BY id LIMIT 1 OFFSET ?`,
+			`SELECT code FROM fixtures WHERE status = 'in-service'
+			   AND id NOT IN (SELECT fixture_id FROM work_orders)
+			   AND id NOT IN (SELECT fixture_id FROM flags WHERE cleared_at IS NULL)
+			 ORDER BY id LIMIT 1 OFFSET ?`,
 			[taken++]
 		);
 		if (!rows.length) throw new Error('no demo fixture without a work order left');
@@ -79,6 +84,9 @@ test.describe('the planner’s calendar', () => {
 
 		await page.getByRole('link', { name: 'Calendar', exact: true }).first().click();
 		await expect(page.getByRole('heading', { name: 'Calendar', level: 1 })).toBeVisible();
+		// Tall enough that both days are in view: scrolling in the middle of a native drag can
+		// drop it.
+		await page.setViewportSize({ width: 1280, height: 1800 });
 		await page.goto(`/plan/calendar?date=${target}`);
 		await untilHydrated(page);
 		await expect(day(page, from).getByRole('button', { name: new RegExp(o.code) })).toBeVisible();
