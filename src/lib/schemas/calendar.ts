@@ -5,7 +5,7 @@
  */
 import { z } from 'zod';
 import { CALENDAR_VIEWS, type CalendarView } from '../domain/calendar';
-import { planQuerySchema } from './plan';
+import { parseQueryDroppingBad, planQuerySchema } from './plan';
 import { isoDateSchema, type WorkOrderAction, type WorkOrderStatus } from './work-orders';
 
 const blank = (v: unknown) => (typeof v === 'string' && v.trim() === '' ? undefined : v);
@@ -28,25 +28,8 @@ export function parseCalendarQuery(
 	params: URLSearchParams,
 	today: string
 ): { query: CalendarQuery; errors: Record<string, string> | null } {
-	const raw: Record<string, string> = {};
-	for (const key of Object.keys(calendarQuerySchema.shape)) {
-		const v = params.get(key);
-		if (v !== null) raw[key] = v;
-	}
-	const errors: Record<string, string> = {};
-	for (;;) {
-		const parsed = calendarQuerySchema.safeParse(raw);
-		if (parsed.success)
-			return {
-				query: { ...parsed.data, date: parsed.data.date ?? today },
-				errors: Object.keys(errors).length ? errors : null
-			};
-		for (const issue of parsed.error.issues) {
-			const key = String(issue.path[0]);
-			errors[key] = issue.message;
-			delete raw[key];
-		}
-	}
+	const { query, errors } = parseQueryDroppingBad(calendarQuerySchema, params);
+	return { query: { ...query, date: query.date ?? today }, errors };
 }
 
 /** The calendar's URL for `q` (defaults left out; `date` kept only when it is not today). */
