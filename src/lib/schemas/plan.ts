@@ -77,19 +77,22 @@ export const planQuerySchema = z.object({
 });
 export type PlanQuery = z.output<typeof planQuerySchema>;
 
-/** Reads the list's filters; a bad one is dropped and named, so a shared link still opens. */
-export function parsePlanQuery(params: URLSearchParams): {
-	query: PlanQuery;
-	errors: Record<string, string> | null;
-} {
+/**
+ * Reads a page's URL query with `schema`; a bad value is dropped and named (key → message), so a
+ * shared link still opens with the rest of it.
+ */
+export function parseQueryDroppingBad<S extends z.ZodObject>(
+	schema: S,
+	params: URLSearchParams
+): { query: z.output<S>; errors: Record<string, string> | null } {
 	const raw: Record<string, string> = {};
-	for (const key of Object.keys(planQuerySchema.shape)) {
+	for (const key of Object.keys(schema.shape)) {
 		const v = params.get(key);
 		if (v !== null) raw[key] = v;
 	}
 	const errors: Record<string, string> = {};
 	for (;;) {
-		const parsed = planQuerySchema.safeParse(raw);
+		const parsed = schema.safeParse(raw);
 		if (parsed.success)
 			return { query: parsed.data, errors: Object.keys(errors).length ? errors : null };
 		for (const issue of parsed.error.issues) {
@@ -98,6 +101,14 @@ export function parsePlanQuery(params: URLSearchParams): {
 			delete raw[key];
 		}
 	}
+}
+
+/** Reads the list's filters; a bad one is dropped and named, so a shared link still opens. */
+export function parsePlanQuery(params: URLSearchParams): {
+	query: PlanQuery;
+	errors: Record<string, string> | null;
+} {
+	return parseQueryDroppingBad(planQuerySchema, params);
 }
 
 /** The list's URL query for `q` (defaults left out), "" when nothing is set. */

@@ -43,3 +43,13 @@ export async function saveOfficeSettings(
 		.values({ id: 1, ...set })
 		.onDuplicateKeyUpdate({ set });
 }
+
+/** The first site's zone ('UTC' without sites): what an empty zone setting stands for. */
+export async function firstSiteTimeZone(q: Db = db): Promise<string> {
+	const [site] = await q
+		.select({ timezone: sites.timezone })
+		.from(sites)
+		.orderBy(asc(sites.id))
+		.limit(1);
+	return site?.timezone ?? 'UTC';
+}

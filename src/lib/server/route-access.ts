@@ -82,6 +82,8 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 		}
 	},
 	'/(app)/plan/new': { page: 'work-order.plan', actions: { default: 'work-order.plan' } },
+	// The calendar: orders by due date; a move is one order's new due date.
+	'/(app)/plan/calendar': { page: 'work-order.plan', actions: { move: 'work-order.plan' } },
 	'/(app)/plan/[id]': {
 		page: 'work-order.plan',
 		actions: { save: 'work-order.plan', status: 'work-order.plan' }
@@ -99,6 +101,7 @@ export const ROUTE_ACCESS: Readonly<Record<string, RouteRule>> = {
 		}
 	},
 	'/(admin)/admin/mail': { page: 'mail.view' },
+	'/(admin)/admin/office': { page: 'office.settings', actions: { save: 'office.settings' } },
 
 	// The API.
 	'/api/health': { methods: { GET: 'public' } },

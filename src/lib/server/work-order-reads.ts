@@ -193,6 +193,8 @@ export interface WorkOrderFilters {
 	from?: string;
 	/** Due on or before (YYYY-MM-DD). */
 	to?: string;
+	/** Only orders without a due date (the calendar's "not on the calendar yet"). */
+	undated?: boolean;
 	/** 1-based. */
 	page?: number;
 	pageSize?: number;
@@ -210,7 +212,8 @@ function listWhere(f: WorkOrderFilters): SQL | undefined {
 		f.areaId ? eq(areas.id, f.areaId) : undefined,
 		f.action ? eq(workOrders.action, f.action) : undefined,
 		f.from ? gte(workOrders.dueOn, f.from) : undefined,
-		f.to ? lte(workOrders.dueOn, f.to) : undefined
+		f.to ? lte(workOrders.dueOn, f.to) : undefined,
+		f.undated ? isNull(workOrders.dueOn) : undefined
 	);
 }
 

@@ -111,6 +111,8 @@ const ANSWER: Record<string, number | ((who: Who) => number)> = {
 	'POST /(app)/plan ?/fromFlag': 400,
 	'GET /(app)/plan/new': 200,
 	'POST /(app)/plan/new ?/default': 400,
+	'GET /(app)/plan/calendar': 200,
+	'POST /(app)/plan/calendar ?/move': 400,
 	// The probe's id is no work order's number: the page and its actions answer "not found".
 	'GET /(app)/plan/[id]': 404,
 	'POST /(app)/plan/[id] ?/save': 404,
@@ -122,6 +124,8 @@ const ANSWER: Record<string, number | ((who: Who) => number)> = {
 	'POST /(admin)/admin/users ?/reactivate': 400,
 	'POST /(admin)/admin/users ?/resend': 400,
 	'GET /(admin)/admin/mail': 200,
+	'GET /(admin)/admin/office': 200,
+	'POST /(admin)/admin/office ?/save': 400,
 	'GET /api/health': 200,
 	'GET /api/fixtures': 200,
 	'POST /api/fixtures': 400,

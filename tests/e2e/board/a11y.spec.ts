@@ -60,6 +60,33 @@ test.describe('accessibility (axe-core: no serious or critical findings)', () =>
 		expect(await seriousViolations(page)).toEqual([]);
 	});
 
+	test('the planner’s calendar, month and week, with an order picked up', async ({ page }) => {
+		await signInAs(page, 'planner', '/plan/calendar');
+		await expect(page.getByRole('heading', { name: 'Calendar', level: 1 })).toBeVisible();
+		expect(await seriousViolations(page)).toEqual([]);
+		await page.goto('/plan/calendar?view=week');
+		await untilHydrated(page);
+		await expect(page.getByRole('heading', { name: 'Not on the calendar yet' })).toBeVisible();
+		// The demo's inspection under way is due today: pick it up, so the target shows too.
+		await page
+			.getByRole('list', { name: /^Days of / })
+			.getByRole('button')
+			.first()
+			.focus();
+		await page.keyboard.press('Enter');
+		await expect(page.getByRole('status', { name: 'Moves' })).toContainText('Picked up');
+		expect(await seriousViolations(page)).toEqual([]);
+	});
+
+	test('the office settings, with their field messages showing', async ({ page }) => {
+		await signInAs(page, 'admin', '/admin/office');
+		await untilHydrated(page);
+		await page.getByLabel('Time zone (IANA name)').fill('Nowhere/Nothing');
+		await page.getByRole('button', { name: 'Save office settings' }).click();
+		await expect(page.getByRole('alert')).toBeVisible();
+		expect(await seriousViolations(page)).toEqual([]);
+	});
+
 	test('the technician’s due work', async ({ page }) => {
 		await signInAs(page, 'technician', '/work');
 		await expect(page.getByRole('heading', { name: 'My work' })).toBeVisible();
